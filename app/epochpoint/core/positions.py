@@ -1,0 +1,160 @@
+"""Positions at an instant: catalogue targets carried to the propagated, apparent and observed
+place, with drift, error ellipses and (on request) the correction ledger.
+
+The per-instant context is built once; stars are processed in chunks of CHUNK_SIZE so memory
+stays bounded (a few hundred bytes per star of scratch) for catalogues of any size.
+"""
+from __future__ import annotations
+
+import os
+from concurrent.futures import ThreadPoolExecutor
+from functools import partial
+
+import numpy as np
+
+from .columns import ColumnTable
+from .apparent import geocentric_direction, rotate
+from .constants import RAD_TO_ARCSEC, RAD_TO_DEG
+from .context import AstrometryContext, make_context
+from .observed import observed_place
+from .site import Site
+from .spacemotion import propagate
+from .uncertainty import error_ellipse_at
+from .targets import Targets
+from .timescale import iso_z
+from .vectors import chord_separation, separation, to_spherical, wrap_pm180
+
+CHUNK_SIZE = 8192
+
+# Units of the result columns, for files and for people.
+COLUMN_UNITS = {
+    "ra_propagated": "deg", "dec_propagated": "deg",
+    "pm_ra_cosdec_propagated": "mas/yr", "pm_dec_propagated": "mas/yr",
+    "parallax_propagated": "mas", "radial_velocity_propagated": "km/s",
+    "ra_apparent": "deg", "dec_apparent": "deg", "ra_cirs": "deg", "dec_cirs": "deg",
+    "ha": "deg", "dec_observed": "deg", "alt": "deg", "az": "deg", "airmass": "",
+    "parallactic_angle": "deg", "drift": "arcsec",
+    "error_major": "mas", "error_minor": "mas", "error_pa": "deg",
+}
+LEDGER_COLUMNS = ("ledger_space_motion", "ledger_parallax", "ledger_light_deflection",
+                  "ledger_annual_aberration", "ledger_precession_nutation",
+                  "ledger_diurnal_aberration", "ledger_refraction")
+COLUMN_UNITS.update({name: "arcsec" for name in LEDGER_COLUMNS})
+SITE_COLUMNS = ("ha", "dec_observed", "alt", "az", "airmass", "parallactic_angle")
+SITE_LEDGER = ("ledger_diurnal_aberration", "ledger_refraction")
+BASE_COLUMNS = ("ra_propagated", "dec_propagated", "pm_ra_cosdec_propagated",
+                "pm_dec_propagated", "parallax_propagated", "radial_velocity_propagated",
+                "ra_apparent", "dec_apparent", "ra_cirs", "dec_cirs", "drift")
+WORKERS = max(1, min(4, os.cpu_count() or 1))
+
+
+def _context_meta(ctx: AstrometryContext) -> dict:
+    """What the numbers mean: instant, site, weather, frames, warnings."""
+    meta = {"time": iso_z(ctx.time),
+            "frame_propagated": "ICRS (barycentric), at the time",
+            "frame_apparent": "geocentric apparent, true equator and equinox of date",
+            "frame_cirs": "geocentric apparent, CIRS"}
+    if ctx.site is not None:
+        s = ctx.site.site
+        meta.update(site=s.name or f"{s.latitude:.6f},{s.longitude:.6f},{s.height:.1f}",
+                    latitude=s.latitude, longitude=s.longitude, height=s.height,
+                    pressure_hpa=s.pressure, temperature_c=s.temperature,
+                    humidity=s.humidity, wavelength_um=s.wavelength, timezone=s.timezone)
+    if ctx.eop_warning:
+        meta["earth_orientation_warning"] = ctx.eop_warning
+    return meta
+
+
+class Positions(ColumnTable):
+    """Result columns (name -> numpy array, degrees/arcsec) with the context they belong to."""
+
+    def __init__(self, columns: dict, context: AstrometryContext):
+        super().__init__(columns, _context_meta(context), COLUMN_UNITS)
+        self.context = context
+
+
+def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False,
+              context: AstrometryContext | None = None) -> Positions:
+    """Propagated, apparent and (with a site) observed places of all targets at one instant.
+
+    `when` is an ISO 8601 UTC string, 'now' or an astropy Time. Without a site only the
+    propagated and apparent columns are computed. Chunks run on all cores (numpy releases
+    the GIL); the per-instant context is computed once.
+    """
+    ctx = context if context is not None else make_context(when, site)
+    n = len(targets)
+    names = list(BASE_COLUMNS)
+    if ctx.site is not None:
+        names += list(SITE_COLUMNS)
+    if ledger:
+        names += [c for c in LEDGER_COLUMNS if ctx.site is not None or c not in SITE_LEDGER]
+    out = {"name": targets.names()}
+    out.update({c: np.empty(n) for c in names})
+    chunks = [slice(start, min(start + CHUNK_SIZE, n)) for start in range(0, n, CHUNK_SIZE)]
+    fill = partial(_fill_chunk, targets, ctx, out, ledger=ledger)
+    if len(chunks) > 1:
+        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
+            list(pool.map(fill, chunks))
+    elif chunks:
+        fill(chunks[0])
+    if targets.has_errors:
+        out.update(error_ellipse_at(targets, ctx.epoch_jyear))
+    return Positions(out, ctx)
+
+
+def _store_radec(out: dict, rows: slice, prefix: str, p: np.ndarray):
+    """Write right ascension and declination (degrees) of vectors p into out[...][rows]."""
+    ra, dec = to_spherical(p)
+    np.multiply(ra, RAD_TO_DEG, out=out[f"ra_{prefix}"][rows])
+    np.multiply(dec, RAD_TO_DEG, out=out[f"dec_{prefix}"][rows])
+
+
+def _fill_chunk(targets: Targets, ctx: AstrometryContext, out: dict, rows: slice, *,
+                ledger: bool):
+    """Compute every column for one chunk of targets into `out`."""
+    ra, dec, parallax, pm_ra_cosdec, pm_dec, radial_velocity, epoch = targets.astrometry(rows)
+    # Space motion from each target's catalogue epoch to the instant.
+    prop = propagate(ra, dec, parallax, pm_ra_cosdec, pm_dec, radial_velocity,
+                     ctx.epoch_jyear - epoch)
+    _store_radec(out, rows, "propagated", prop.u)
+    out["pm_ra_cosdec_propagated"][rows] = prop.pm_ra_cosdec
+    out["pm_dec_propagated"][rows] = prop.pm_dec
+    out["parallax_propagated"][rows] = prop.parallax
+    out["radial_velocity_propagated"][rows] = prop.radial_velocity
+    # Drift: how far the star has moved from its catalogue position.
+    np.multiply(chord_separation(prop.u0, prop.u), RAD_TO_ARCSEC, out=out["drift"][rows])
+
+    # Parallax, light deflection and aberration seen from the geocentre.
+    p_astrometric, p_deflected, p_gcrs = geocentric_direction(prop.u, prop.parallax, ctx)
+    # Rotate into the true equator and equinox of date, and into CIRS.
+    p_tod = rotate(ctx.npb_true_of_date, p_gcrs)
+    _store_radec(out, rows, "apparent", p_tod)
+    p_cirs = rotate(ctx.c2i, p_gcrs)
+    _store_radec(out, rows, "cirs", p_cirs)
+
+    observed = None
+    if ctx.site is not None:
+        # Earth rotation, polar motion, diurnal aberration and refraction at the site.
+        observed = observed_place(p_cirs, ctx.site)
+        out["ha"][rows] = wrap_pm180(observed.ha * RAD_TO_DEG)
+        np.multiply(observed.dec, RAD_TO_DEG, out=out["dec_observed"][rows])
+        np.multiply(observed.alt, RAD_TO_DEG, out=out["alt"][rows])
+        np.multiply(observed.az, RAD_TO_DEG, out=out["az"][rows])
+        out["airmass"][rows] = observed.airmass
+        np.multiply(observed.parallactic_angle, RAD_TO_DEG, out=out["parallactic_angle"][rows])
+
+    if ledger:
+        stages = {
+            "ledger_space_motion": (prop.u0, prop.u),
+            "ledger_parallax": (prop.u, p_astrometric),
+            "ledger_light_deflection": (p_astrometric, p_deflected),
+            "ledger_annual_aberration": (p_deflected, p_gcrs),
+            # The coordinate change of the same direction between the GCRS and the true
+            # equator and equinox of date (frame bias, precession, nutation).
+            "ledger_precession_nutation": (p_gcrs, p_tod),
+        }
+        for column, (before, after) in stages.items():
+            out[column][rows] = separation(before, after) * RAD_TO_ARCSEC
+        if observed is not None:
+            out["ledger_diurnal_aberration"][rows] = observed.diurnal_aberration * RAD_TO_ARCSEC
+            out["ledger_refraction"][rows] = observed.refraction * RAD_TO_ARCSEC

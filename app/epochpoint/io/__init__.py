@@ -1,0 +1,41 @@
+"""Epochpoint's file layer: target lists, site files and result tables in and out.
+
+Every reader turns bad content into `InputError`, a ValueError whose text is one line naming
+file, line (or row), target and column. Every writer saves atomically.
+
+Target lists (CSV, ECSV, VOTable; Gaia archive column names accepted; FK5/FK4 rows converted
+to ICRS)::
+
+    targets = read_targets("targets.csv", skip_bad_rows=False, on_skip=None)
+    write_targets(targets, "targets.ecsv")          # format from the extension, or format=
+
+Sites (TOML file or 'LAT,LON,HEIGHT')::
+
+    site = read_site("observatory.toml")            # or read_site("-24.6,-70.4,2635")
+    site, reserved = read_site_file("observatory.toml")
+
+Results::
+
+    text = write_result(columns, meta, None, "json")   # path None: return the text
+    write_result(columns, meta, "out.votable", "votable", units={"alt": "deg"})
+
+Angles and epochs: parse_ra, parse_dec, parse_epoch; format_ra_hms, format_dec_dms,
+format_hours. Atomic saves: atomic_write_bytes, atomic_write_text.
+"""
+from .angles import format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra
+from .atomic import atomic_write_bytes, atomic_write_text
+from .epochs import parse_epoch
+from .errors import InputError, SkippedRowWarning
+from .peopletable import format_people_table
+from .results import RESULT_FORMATS, format_result, write_result
+from .sitefile import parse_site_spec, read_site, read_site_file
+from .targetfile import TARGET_FORMATS, read_targets, target_format, write_targets
+
+__all__ = [
+    "InputError", "SkippedRowWarning",
+    "read_targets", "write_targets", "target_format", "TARGET_FORMATS",
+    "read_site", "read_site_file", "parse_site_spec",
+    "write_result", "format_result", "format_people_table", "RESULT_FORMATS",
+    "parse_ra", "parse_dec", "parse_epoch", "format_ra_hms", "format_dec_dms", "format_hours",
+    "atomic_write_bytes", "atomic_write_text",
+]

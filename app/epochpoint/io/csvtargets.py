@@ -1,0 +1,135 @@
+"""Target lists as CSV: what people type in a spreadsheet or an editor, and what we write back.
+
+Reading: UTF-8 (a byte-order mark is allowed), a header row of case-insensitive column names,
+`#` comment lines and blank lines skipped anywhere, spaces around cells ignored. Values are in
+our units (degrees, mas, mas/yr, km/s; ra/dec may be sexagesimal). Line numbers in messages are
+the file's own, header = line 1 (counting comment lines too).
+
+Writing: one comment line stating frame and units, a header, then shortest round-trip float text
+(`repr`), so a file written and read again gives the same numbers bit for bit. Unknown errors and
+NaN extras become empty cells.
+"""
+from __future__ import annotations
+
+import csv
+import io
+
+import numpy as np
+
+from .errors import InputError
+from .filebytes import decode_utf8
+from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS, match_columns
+from .targetrows import RawColumn, RawTable
+
+CSV_HEADER_COMMENT = ("# ICRS; ra, dec deg; epoch Julian year (TDB); pm_ra_cosdec, pm_dec mas/yr; "
+                      "parallax mas; radial_velocity km/s; errors mas, mas/yr, km/s")
+
+
+def _content_lines(text: str, line_numbers: list):
+    """Yield the lines that hold data, appending each one's 1-based file line number."""
+    lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
+    for number, line in enumerate(lines, start=1):
+        stripped = line.strip()
+        if stripped and not stripped.startswith("#"):
+            line_numbers.append(number)
+            yield line + "\n"
+
+
+def _rows(path: str, text: str):
+    """(first file line, stripped cells) for every CSV record; csv errors become InputError."""
+    line_numbers: list[int] = []
+    reader = csv.reader(_content_lines(text, line_numbers))
+    while True:
+        consumed = len(line_numbers)
+        try:
+            cells = next(reader)
+        except StopIteration:
+            return
+        except csv.Error as err:
+            line = line_numbers[-1] if line_numbers else None
+            raise InputError(path, f"is not valid CSV ({err})", line=line) from None
+        yield line_numbers[consumed], [c.strip() for c in cells]
+
+
+def read_csv_targets(path: str, data: bytes) -> RawTable:
+    """The rows of a CSV target file, ready for build_targets."""
+    records = _rows(path, decode_utf8(path, data))
+    first = next(records, None)
+    if first is None:
+        raise InputError(path, "is empty (no header row)")
+    header_line, labels = first
+    rows = list(records)
+    labels = _drop_unnamed_columns(path, header_line, labels, rows)
+    try:
+        known, extra = match_columns(labels)
+    except ValueError as err:
+        raise InputError(path, str(err), line=header_line) from None
+    for needed in ("ra", "dec"):
+        if needed not in known:
+            raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})",
+                             line=header_line)
+    if not rows:
+        raise InputError(path, "has a header but no targets")
+
+    width = len(labels)
+    row_problems = {}
+    for i, (_, cells) in enumerate(rows):
+        if len(cells) != width:
+            row_problems[i] = (None, f"has {len(cells)} cells, the header has {width} columns")
+    grid = np.array([cells[:width] + [""] * (width - len(cells)) for _, cells in rows],
+                    dtype=object).reshape(len(rows), width)
+    columns = {}
+    for canonical, index in known.items():
+        cells = grid[:, index]
+        columns[canonical] = RawColumn(labels[index], cells, cells == "")
+    return RawTable(path=path, row_numbers=np.array([line for line, _ in rows]), row_word="line",
+                    columns=columns, extra={labels[i]: grid[:, i] for i in extra},
+                    row_problems=row_problems)
+
+
+def _drop_unnamed_columns(path, header_line, labels, rows):
+    """Drop trailing-comma columns: an unnamed column is allowed only while all its cells are empty."""
+    unnamed = [i for i, label in enumerate(labels) if not label]
+    for i in unnamed:
+        for line, cells in rows:
+            if i < len(cells) and cells[i]:
+                raise InputError(path, f"column {i + 1} has values but no name in the header",
+                                 line=line)
+    if not unnamed:
+        return labels
+    for _, cells in rows:
+        cells[:] = [c for j, c in enumerate(cells) if j not in unnamed]
+    return [label for label in labels if label]
+
+
+def _float_text(values: np.ndarray) -> list[str]:
+    """Shortest round-trip text of floats; NaN becomes an empty cell."""
+    return ["" if v != v else repr(float(v)) for v in values]
+
+
+def _cell_text(values: np.ndarray) -> list[str]:
+    """Extra columns: floats as _float_text, everything else as str, None as empty."""
+    if np.asarray(values).dtype.kind == "f":
+        return _float_text(values)
+    return ["" if v is None else str(v) for v in values]
+
+
+def format_csv_targets(targets) -> str:
+    """The CSV text of a target list (see module docstring)."""
+    columns = {"name": [str(x) for x in targets.name]}
+    for col in ASTROMETRY_COLUMNS:
+        columns[col] = _float_text(getattr(targets, col))
+    for col in UNCERTAINTY_COLUMNS:
+        if col in targets.errors:
+            columns[col] = _float_text(targets.errors[col])
+    for label, values in targets.extra.items():
+        columns[str(label)] = _cell_text(values)
+    out = io.StringIO()
+    out.write(CSV_HEADER_COMMENT + "\n")
+    plain = csv.writer(out, lineterminator="\n")
+    quoted = csv.writer(out, lineterminator="\n", quoting=csv.QUOTE_ALL)
+    plain.writerow(columns)
+    for row in zip(*columns.values()):
+        # A first cell starting with '#' would read back as a comment line: quote that row.
+        (quoted if row[0].lstrip().startswith("#") else plain).writerow(row)
+    return out.getvalue()

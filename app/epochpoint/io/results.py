@@ -1,0 +1,137 @@
+"""Result tables (what the engine computes) to CSV, JSON, ECSV, VOTable or a table for people.
+
+A result is an ordered mapping column name -> numpy array (floats in degrees, arcseconds, ...;
+names as strings), plus `meta`, a dict of scalars such as {"time": "2027-01-20T23:10:00Z"}.
+NaN (or None) means "no value": an empty CSV cell, JSON null, a masked ECSV/VOTable cell.
+
+- csv: `# key: value` comment lines for meta, a header row, shortest round-trip float text.
+- json: a list of objects, one per row, exactly that shape (meta is not included); plain
+  Python numbers only, NaN -> null (RFC 8259 has no NaN).
+- ecsv / votable: astropy.table with units from `units`; meta in the ECSV header, and as
+  VOTable INFO elements (IVOA VOTable 1.4, section 4.7).
+- table: aligned text for people (peopletable.format_people_table).
+"""
+from __future__ import annotations
+
+import csv
+import io
+import json
+import os
+import warnings
+
+import numpy as np
+from astropy.io.votable import from_table
+from astropy.io.votable.tree import Info
+from astropy.table import MaskedColumn, Table
+
+from .atomic import atomic_write_text
+from .errors import InputError
+from .peopletable import format_people_table
+from .tabletargets import table_bytes
+
+RESULT_FORMATS = ("csv", "json", "ecsv", "votable", "table")
+
+
+def _python_value(v):
+    """A plain JSON-able Python value: None for no value, float/int/bool/str otherwise."""
+    if v is None:
+        return None
+    if isinstance(v, (bool, np.bool_)):
+        return bool(v)
+    if isinstance(v, (int, np.integer)):
+        return int(v)
+    if isinstance(v, (float, np.floating)):
+        return float(v) if np.isfinite(v) else None
+    return str(v)
+
+
+def _csv_cell(v) -> str:
+    v = _python_value(v)
+    if v is None:
+        return ""
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    return repr(v) if isinstance(v, float) else str(v)
+
+
+def _one_line(value) -> str:
+    return " ".join(str(value).split())
+
+
+def result_csv(columns, meta) -> str:
+    out = io.StringIO()
+    for key, value in (meta or {}).items():
+        out.write(f"# {key}: {_one_line(value)}\n")
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(list(columns))
+    cells = [[_csv_cell(v) for v in np.asarray(values, dtype=object)] for values in columns.values()]
+    writer.writerows(zip(*cells))
+    return out.getvalue()
+
+
+def result_json(columns) -> str:
+    names = list(columns)
+    values = [[_python_value(v) for v in np.asarray(col, dtype=object)] for col in columns.values()]
+    rows = [json.dumps(dict(zip(names, row)), allow_nan=False) for row in zip(*values)]
+    return "[\n" + ",\n".join(rows) + "\n]\n" if rows else "[]\n"
+
+
+def result_table(columns, meta, units) -> Table:
+    """An astropy Table of a result: NaN/None masked, units attached, meta as plain scalars."""
+    table = Table()
+    for name, values in columns.items():
+        values = np.asarray(values)
+        unit = (units or {}).get(name) or None
+        if values.dtype.kind == "f":
+            table[name] = MaskedColumn(values, mask=~np.isfinite(values), unit=unit)
+        elif values.dtype.kind in "OSU":
+            none = np.array([v is None for v in values], dtype=bool)
+            text = np.array(["" if v is None else str(v) for v in values], dtype=str)
+            table[name] = MaskedColumn(text, mask=none, unit=unit) if none.any() else text
+        else:
+            table[name] = MaskedColumn(values, unit=unit) if unit else values
+    table.meta.update({str(k): _python_value(v) for k, v in (meta or {}).items()})
+    return table
+
+
+def result_votable(table: Table) -> str:
+    votable = from_table(table)
+    for key, value in table.meta.items():
+        votable.resources[0].infos.append(Info(name=key, value="" if value is None else str(value)))
+    out = io.BytesIO()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        votable.to_xml(out)
+    return out.getvalue().decode("utf-8")
+
+
+def format_result(columns, meta, format: str, units=None, formatters=None) -> str:
+    """The text of a result in one of RESULT_FORMATS."""
+    if format == "csv":
+        return result_csv(columns, meta)
+    if format == "json":
+        return result_json(columns)
+    if format == "ecsv":
+        return table_bytes(result_table(columns, meta, units), "ecsv").decode("utf-8")
+    if format == "votable":
+        return result_votable(result_table(columns, meta, units))
+    if format == "table":
+        return format_people_table(columns, formatters, meta, units)
+    raise InputError(None, f"unknown result format {format!r} (use {', '.join(RESULT_FORMATS)})")
+
+
+def write_result(columns, meta, path=None, format="csv", units=None, formatters=None):
+    """Write a result table to `path` atomically, or return its text when path is None.
+
+    columns: ordered mapping name -> array; meta: dict of scalars; format: one of
+    RESULT_FORMATS; units: optional name -> unit string; formatters: per-column text
+    formatters for the 'table' format.
+    """
+    text = format_result(columns, meta, format, units=units, formatters=formatters)
+    if path is None:
+        return text
+    try:
+        atomic_write_text(path, text)
+    except OSError as err:
+        raise InputError(os.fspath(path), f"cannot be written ({err.strerror or err})") from None
+    return None

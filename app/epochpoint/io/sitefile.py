@@ -1,0 +1,138 @@
+"""The observing site from a TOML site file or from a `LAT,LON,HEIGHT` string.
+
+Site file schema (Epochpoint's own; TOML 1.0, read with tomllib)::
+
+    [site]
+    name = "..."            # free text (optional)
+    latitude = -31.2        # degrees, north positive (required)
+    longitude = -69.9       # degrees, east positive (required)
+    height = 2410.0         # metres above the WGS84 ellipsoid (optional, default 0)
+    timezone = "America/Argentina/San_Juan"   # IANA name, checked with zoneinfo (default UTC)
+
+    [weather]               # default conditions (optional); command-line options override them
+    pressure = 760.0        # hPa; omit for the standard atmosphere at the site height; 0 = no refraction
+    temperature = 8.0       # degrees C (default 10)
+    humidity = 0.25         # relative, 0..1 (default 0.5)
+    wavelength = 0.55       # micrometres (default 0.55)
+
+    [horizon]  [mount]  [safety]   # reserved for later use: accepted, returned, not yet read
+
+Any other table, or any other key in [site] or [weather], is an error naming file, table and
+key, so a misspelt key never passes silently. Values outside their physical range are refused
+by `Site` itself; its message reaches the user as one line naming the file.
+
+The string form `LAT,LON[,HEIGHT]` gives degrees (north and east positive) and metres, e.g.
+`-24.6,-70.4,2635`; the height defaults to 0 and the weather to Site's defaults.
+"""
+from __future__ import annotations
+
+import os
+import re
+import tomllib
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+from epochpoint.core.site import Site, SiteError
+
+from .errors import InputError, quote
+from .filebytes import decode_utf8, read_file_bytes
+
+SITE_KEYS = ("name", "latitude", "longitude", "height", "timezone")
+WEATHER_KEYS = ("pressure", "temperature", "humidity", "wavelength")
+RESERVED_TABLES = ("horizon", "mount", "safety")
+TEXT_KEYS = ("name", "timezone")
+REQUIRED_SITE_KEYS = ("latitude", "longitude")
+
+
+def parse_site_spec(text: str) -> Site:
+    """A Site from 'LAT,LON' or 'LAT,LON,HEIGHT' (degrees, east-positive; metres)."""
+    label = f"site {quote(text)}"
+    parts = [p.strip() for p in str(text).split(",")]
+    if len(parts) not in (2, 3):
+        raise InputError(None, f"{label} is not LAT,LON,HEIGHT (degrees, east-positive "
+                               "longitude, metres; e.g. -24.6,-70.4,2635)")
+    values = {}
+    for key, part in zip(("latitude", "longitude", "height"), parts):
+        try:
+            values[key] = float(part)
+        except ValueError:
+            raise InputError(None, f"{label}: {key} {quote(part)} is not a number") from None
+    try:
+        return Site(**values)
+    except SiteError as err:
+        raise InputError(None, f"{label}: {err}") from None
+
+
+def read_site(spec) -> Site:
+    """A Site from a TOML site file path or a 'LAT,LON,HEIGHT' string (an existing file wins)."""
+    text = os.fspath(spec)
+    if not os.path.exists(text):
+        if "," in text:
+            return parse_site_spec(text)
+        raise InputError(text, "no such site file (give a TOML site file or LAT,LON,HEIGHT)")
+    return read_site_file(text)[0]
+
+
+def _check_keys(path: str, table_name: str, table: dict, allowed: tuple) -> None:
+    for key in table:
+        if key not in allowed:
+            raise InputError(path, f"table [{table_name}], key {quote(key)}: unknown key "
+                                   f"(known: {', '.join(allowed)})")
+
+
+def _value(path: str, table_name: str, key: str, value):
+    """A key's value, checked for type: text keys need strings, the others numbers."""
+    if key in TEXT_KEYS:
+        if not isinstance(value, str):
+            raise InputError(path, f"table [{table_name}], key {key}: must be text in quotes")
+        return value
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise InputError(path, f"table [{table_name}], key {key}: {quote(value)} is not a number")
+    return float(value)
+
+
+def _load_toml(path: str) -> dict:
+    try:
+        return tomllib.loads(decode_utf8(path, read_file_bytes(path)))
+    except tomllib.TOMLDecodeError as err:
+        match = re.search(r"line (\d+)", str(err))
+        raise InputError(path, f"is not valid TOML: {err}",
+                         line=int(match.group(1)) if match else None) from None
+
+
+def read_site_file(path) -> tuple[Site, dict]:
+    """(Site, {reserved table name: its contents}) from a TOML site file (schema above)."""
+    path = os.fspath(path)
+    document = _load_toml(path)
+    for name, table in document.items():
+        if name not in ("site", "weather") + RESERVED_TABLES:
+            raise InputError(path, f"unknown table or key {quote(name)} (known tables: "
+                                   f"[site], [weather], {', '.join(f'[{t}]' for t in RESERVED_TABLES)})")
+        if not isinstance(table, dict):
+            raise InputError(path, f"{name} must be a table, written [{name}]")
+    if "site" not in document:
+        raise InputError(path, "has no [site] table")
+    site_table, weather_table = document["site"], document.get("weather", {})
+    _check_keys(path, "site", site_table, SITE_KEYS)
+    _check_keys(path, "weather", weather_table, WEATHER_KEYS)
+    for key in REQUIRED_SITE_KEYS:
+        if key not in site_table:
+            raise InputError(path, f"table [site] has no {key}")
+    values = {key: _value(path, "site", key, v) for key, v in site_table.items()}
+    values.update({key: _value(path, "weather", key, v) for key, v in weather_table.items()})
+    if "timezone" in values:
+        _check_timezone(path, values["timezone"])
+    try:
+        site = Site(**values)
+    except SiteError as err:
+        table = "weather" if err.field in WEATHER_KEYS else "site"
+        detail = str(err).split(": ", 1)[-1]
+        raise InputError(path, f"table [{table}], key {err.field}: {detail}") from None
+    return site, {name: document[name] for name in RESERVED_TABLES if name in document}
+
+
+def _check_timezone(path: str, name: str) -> None:
+    try:
+        ZoneInfo(name)
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        raise InputError(path, f"table [site], key timezone: {quote(name)} is not an IANA time "
+                               "zone (e.g. America/Argentina/San_Juan)") from None

@@ -1,0 +1,155 @@
+"""Target lists as ECSV or VOTable, read and written through astropy.table with units.
+
+Reading is unit-aware: ra/dec in any angle unit (deg, hourangle, rad, ...), proper motions to
+mas/yr, parallax to mas, radial velocity to km/s, errors likewise; a column without a unit is in
+our default unit (targetcolumns.DEFAULT_UNITS). Epoch numbers are Julian years whatever their
+unit says; text columns are read like CSV cells (so sexagesimal ra/dec work, units ignored).
+Masked cells mean "not given": zero motion, default epoch, unknown error. Rows are numbered
+1, 2, ... in data order. Planning columns keep their type (numbers stay numbers; masked numbers
+become NaN, masked text becomes '').
+
+Writing puts every Targets column in a table with its unit: unknown errors are masked (empty in
+ECSV, null in VOTable), float text is round-trip exact in both formats.
+"""
+from __future__ import annotations
+
+import io
+import warnings
+
+import astropy.units as u
+import numpy as np
+from astropy.table import Column, MaskedColumn, Table
+
+from .errors import InputError, quote
+from .filebytes import decode_utf8
+from .targetcolumns import (ASTROMETRY_COLUMNS, DEFAULT_UNITS, UNCERTAINTY_COLUMNS,
+                            match_columns)
+from .targetrows import RawColumn, RawTable
+
+FORMAT_NAMES = {"ecsv": "ECSV", "votable": "VOTable"}
+_ASTROPY_FORMATS = {"ecsv": "ascii.ecsv", "votable": "votable"}
+
+
+def _load_table(path: str, data: bytes, fmt: str) -> Table:
+    """An astropy Table from file bytes; anything astropy cannot read is an InputError."""
+    source = decode_utf8(path, data).splitlines() if fmt == "ecsv" else io.BytesIO(data)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # astropy's VOTable conformance notes
+            return Table.read(source, format=_ASTROPY_FORMATS[fmt])
+    except Exception as err:  # astropy raises many types for malformed files
+        first_line = (str(err).strip().splitlines() or [type(err).__name__])[0][:100]
+        raise InputError(path, f"is not a readable {FORMAT_NAMES[fmt]} file ({first_line})") \
+            from None
+
+
+def _as_text(values: np.ndarray) -> np.ndarray:
+    """An object array of str from any column data (bytes decoded as UTF-8)."""
+    return np.array([v.decode("utf-8", "replace") if isinstance(v, bytes) else str(v)
+                     for v in values], dtype=object)
+
+
+def _unit_factor(path: str, label: str, unit, canonical: str) -> float:
+    """The factor from the column's unit to ours (1 without a unit)."""
+    if unit is None:
+        return 1.0
+    ours = u.Unit(DEFAULT_UNITS[canonical])
+    try:
+        return float(u.Unit(unit).to(ours))
+    except (u.UnitsError, ValueError, TypeError):
+        wanted = ours.to_string() or "a plain number"
+        raise InputError(path, f"unit {quote(unit)} cannot be converted to {wanted}",
+                         column=label) from None
+
+
+def _raw_column(path: str, canonical: str, column) -> RawColumn:
+    """One known column in our units (numbers) or as text cells."""
+    data, missing = np.ma.getdata(column), np.ma.getmaskarray(column).copy()
+    if data.ndim != 1:
+        raise InputError(path, "must hold one value per row", column=column.name)
+    if data.dtype.kind in "biuf":
+        if canonical in DEFAULT_UNITS and canonical != "epoch":
+            factor = _unit_factor(path, column.name, column.unit, canonical)
+            data = data.astype(float) * factor
+        return RawColumn(column.name, data, missing)
+    text = _as_text(data)
+    stripped = np.array([t.strip() for t in text], dtype=object)
+    return RawColumn(column.name, stripped, missing | (stripped == ""))
+
+
+def _extra_values(column) -> np.ndarray:
+    """A planning column kept in its type: masked numbers become NaN, masked text ''."""
+    data, mask = np.ma.getdata(column), np.ma.getmaskarray(column)
+    if data.dtype.kind in "iuf":
+        if not mask.any():
+            return np.array(data)
+        values = data.astype(float)
+        values[mask] = np.nan
+        return values
+    if data.dtype.kind == "b" and not mask.any():
+        return np.array(data)
+    text = _as_text(data) if data.ndim == 1 else np.array(data)
+    if data.ndim == 1:
+        text[mask] = ""
+    return text
+
+
+def read_table_targets(path: str, data: bytes, fmt: str) -> RawTable:
+    """The rows of an ECSV ('ecsv') or VOTable ('votable') target file, ready for build_targets."""
+    table = _load_table(path, data, fmt)
+    labels = list(table.colnames)
+    try:
+        known, extra = match_columns(labels)
+    except ValueError as err:
+        raise InputError(path, str(err)) from None
+    for needed in ("ra", "dec"):
+        if needed not in known:
+            raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})")
+    if len(table) == 0:
+        raise InputError(path, "has no targets")
+    columns = {c: _raw_column(path, c, table.columns[i]) for c, i in known.items()}
+    return RawTable(path=path, row_numbers=np.arange(1, len(table) + 1), row_word="row",
+                    columns=columns,
+                    extra={labels[i]: _extra_values(table.columns[i]) for i in extra})
+
+
+def _unit(canonical: str):
+    return DEFAULT_UNITS[canonical] or None
+
+
+def targets_table(targets) -> Table:
+    """An astropy Table of a target list, every column with its unit."""
+    table = Table()
+    table["name"] = np.array([str(x) for x in targets.name], dtype=str)
+    for col in ASTROMETRY_COLUMNS:
+        table[col] = Column(np.asarray(getattr(targets, col), dtype=float), unit=_unit(col))
+    for col in UNCERTAINTY_COLUMNS:
+        if col in targets.errors:
+            values = np.asarray(targets.errors[col], dtype=float)
+            table[col] = MaskedColumn(values, mask=np.isnan(values), unit=_unit(col))
+    for label, values in targets.extra.items():
+        values = np.asarray(values)
+        if values.dtype.kind == "O" or values.dtype.kind == "S":
+            values = np.array(["" if v is None else str(v) for v in values], dtype=str)
+        table[str(label)] = values
+    table.meta["frame"] = "ICRS"
+    table.meta["epoch"] = "Julian year (TDB)"
+    return table
+
+
+def format_table_targets(targets, fmt: str) -> bytes:
+    """The bytes of an ECSV ('ecsv') or VOTable ('votable') target file."""
+    return table_bytes(targets_table(targets), fmt)
+
+
+def table_bytes(table: Table, fmt: str) -> bytes:
+    """An astropy Table serialized as ECSV or VOTable (UTF-8 bytes)."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # e.g. VOTable notes on column names that are not XML IDs
+        if fmt == "ecsv":
+            text = io.StringIO()
+            table.write(text, format="ascii.ecsv")
+            return text.getvalue().encode("utf-8")
+        binary = io.BytesIO()
+        table.write(binary, format="votable")
+        return binary.getvalue()

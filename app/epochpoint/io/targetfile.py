@@ -1,0 +1,69 @@
+"""Reading and writing target lists: the format follows the file name (or the content).
+
+`.csv` -> CSV, `.ecsv` -> ECSV, `.vot`/`.votable`/`.xml` -> VOTable. Any other name is sniffed:
+`# %ECSV` starts an ECSV file, `<?xml`/`<VOTABLE` a VOTable, anything else is read as CSV.
+"""
+from __future__ import annotations
+
+import os
+
+from epochpoint.core.targets import Targets
+
+from .atomic import atomic_write_bytes
+from .csvtargets import format_csv_targets, read_csv_targets
+from .errors import InputError
+from .filebytes import read_file_bytes
+from .tabletargets import format_table_targets, read_table_targets
+from .targetrows import build_targets
+
+FORMAT_BY_SUFFIX = {".csv": "csv", ".ecsv": "ecsv", ".vot": "votable", ".votable": "votable",
+                    ".xml": "votable"}
+TARGET_FORMATS = ("csv", "ecsv", "votable")
+
+
+def target_format(path, data: bytes | None = None) -> str | None:
+    """'csv', 'ecsv' or 'votable' from the file name, else from the content; None if unknown."""
+    fmt = FORMAT_BY_SUFFIX.get(os.path.splitext(os.fspath(path))[1].lower())
+    if fmt is not None or data is None:
+        return fmt
+    head = data[:1024].lstrip(b"\xef\xbb\xbf \t\r\n")
+    if head.startswith(b"# %ECSV"):
+        return "ecsv"
+    if head.startswith(b"<?xml") or b"<VOTABLE" in head.upper():
+        return "votable"
+    return "csv"
+
+
+def read_targets(path, skip_bad_rows: bool = False, on_skip=None) -> Targets:
+    """The targets of a CSV, ECSV or VOTable file, converted to ICRS and validated.
+
+    Bad content raises InputError (one line: file, line or row, target, column). With
+    skip_bad_rows=True each bad row is passed to on_skip(InputError) instead (default: a
+    SkippedRowWarning with the same text) and left out.
+    """
+    path = os.fspath(path)
+    data = read_file_bytes(path)
+    if not data.strip():
+        raise InputError(path, "is empty")
+    fmt = target_format(path, data)
+    raw = read_csv_targets(path, data) if fmt == "csv" else read_table_targets(path, data, fmt)
+    return build_targets(raw, skip_bad_rows=skip_bad_rows, on_skip=on_skip)
+
+
+def write_targets(targets: Targets, path, format: str | None = None) -> None:
+    """Save targets atomically as csv, ecsv or votable (format None: from the file name).
+
+    Everything read_targets reads is written: astrometry in ICRS, errors, correlations and the
+    extra planning columns. An unknown format or an unwritable path is an InputError.
+    """
+    path = os.fspath(path)
+    fmt = format or target_format(path)
+    if fmt not in TARGET_FORMATS:
+        raise InputError(path, f"unknown target file format {fmt or 'for this file name'}; "
+                               "use .csv, .ecsv or .vot")
+    data = (format_csv_targets(targets).encode("utf-8") if fmt == "csv"
+            else format_table_targets(targets, fmt))
+    try:
+        atomic_write_bytes(path, data)
+    except OSError as err:
+        raise InputError(path, f"cannot be written ({err.strerror or err})") from None

@@ -1,0 +1,234 @@
+"""From the cells of a target file to validated `Targets`, one bad row at a time.
+
+The file readers (CSV, ECSV/VOTable) hand over a `RawTable`: per known column either text
+cells or numbers already in our units, with a mask of empty/masked cells. This module applies
+one rule per column (how to parse text, what an empty cell means, which values are out of
+range), collects the first problem of every row, then either raises it as an `InputError` or,
+with skip_bad_rows, reports each bad row and leaves it out. FK5/FK4 rows are converted to ICRS
+last, on the good rows only.
+"""
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from epochpoint.core.targets import CORRELATION_COLUMNS, ERROR_COLUMNS, TargetError, Targets
+
+from .angles import parse_ra, parse_dec
+from .epochs import EPOCH_MAX_YEAR, EPOCH_MIN_YEAR, parse_epoch
+from .errors import InputError, SkippedRowWarning, quote
+from .frames import convert_to_icrs, parse_equinox, parse_frame
+from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS
+
+DEFAULT_EPOCH_JYEAR = 2000.0
+
+
+@dataclass
+class RawColumn:
+    """One known column as read: `values` are text cells (object array of str) or numbers
+    already in our units; `missing` marks empty or masked cells."""
+
+    label: str  # the column's name as written in the file
+    values: np.ndarray
+    missing: np.ndarray
+
+
+@dataclass
+class RawTable:
+    """A target file's rows before validation (see module docstring)."""
+
+    path: str
+    row_numbers: np.ndarray  # per row: line in the file, or data row number
+    row_word: str  # "line" or "row", how row_numbers are named in messages
+    columns: dict  # canonical name -> RawColumn
+    extra: dict = field(default_factory=dict)  # label -> array, carried along untouched
+    row_problems: dict = field(default_factory=dict)  # row index -> (label, message), from the reader
+
+    def __len__(self) -> int:
+        return len(self.row_numbers)
+
+
+def parse_number(text: str) -> float:
+    """A float from a cell, ValueError with a short message otherwise."""
+    try:
+        return float(text)
+    except ValueError:
+        raise ValueError(f"{quote(text)} is not a number") from None
+
+
+@dataclass(frozen=True)
+class ColumnRule:
+    """How one column is read: text parser, value of an empty cell (None: required), whether
+    NaN also means "unknown", and a range check with its message."""
+
+    parse: Callable[[str], float] = parse_number
+    if_missing: float | None = 0.0
+    nan_means_missing: bool = False
+    out_of_range: Callable[[np.ndarray], np.ndarray] | None = None
+    range_message: str = ""
+
+
+RULES = {
+    "ra": ColumnRule(parse_ra, None, False, lambda v: (v < 0.0) | (v >= 360.0),
+                     "is outside [0, 360) degrees"),
+    "dec": ColumnRule(parse_dec, None, False, lambda v: np.abs(v) > 90.0,
+                      "is outside [-90, +90] degrees"),
+    "epoch": ColumnRule(parse_epoch, DEFAULT_EPOCH_JYEAR, False,
+                        lambda v: (v < EPOCH_MIN_YEAR) | (v > EPOCH_MAX_YEAR),
+                        f"is outside the years {EPOCH_MIN_YEAR:.0f} to {EPOCH_MAX_YEAR:.0f}"),
+    "pm_ra_cosdec": ColumnRule(),
+    "pm_dec": ColumnRule(),
+    "parallax": ColumnRule(out_of_range=lambda v: v < 0.0,
+                           range_message="is negative (parallax must be 0 or more)"),
+    "radial_velocity": ColumnRule(),
+    **{col: ColumnRule(parse_number, np.nan, True, lambda v: v < 0.0,
+                       "is negative (an error must be 0 or more)") for col in ERROR_COLUMNS},
+    **{col: ColumnRule(parse_number, np.nan, True, lambda v: np.abs(v) > 1.0,
+                       "is outside [-1, 1]") for col in CORRELATION_COLUMNS},
+}
+
+
+def parse_column(column: RawColumn, rule: ColumnRule) -> tuple[np.ndarray, dict]:
+    """(float values, {row index: message}) for one column under its rule."""
+    n = len(column.missing)
+    values = np.full(n, np.nan)
+    problems: dict[int, str] = {}
+    present = ~column.missing
+    if column.values.dtype.kind in "biuf":
+        values[present] = column.values[present].astype(float)
+        shown = lambda i: quote(repr(float(values[i])))  # noqa: E731
+    else:
+        texts = column.values
+        rows = np.flatnonzero(present)
+        try:  # fast path: a column of plain numbers
+            values[rows] = texts[rows].astype(float)
+        except (ValueError, TypeError):
+            for i in rows:
+                try:
+                    values[i] = rule.parse(texts[i])
+                except ValueError as err:
+                    problems[int(i)] = str(err)
+        shown = lambda i: quote(texts[i])  # noqa: E731
+    missing = column.missing.copy()
+    if rule.nan_means_missing:
+        missing |= present & np.isnan(values) & ~_mask(problems, n)
+        present = ~missing
+    checks = [(~np.isfinite(values), "is not a finite number")]
+    if rule.out_of_range is not None:
+        with np.errstate(invalid="ignore"):
+            checks.append((np.isfinite(values) & rule.out_of_range(values), rule.range_message))
+    for bad, message in checks:
+        for i in np.flatnonzero(bad & present & ~_mask(problems, n)):
+            problems[int(i)] = f"{shown(i)} {message}"
+    if rule.if_missing is None:
+        for i in np.flatnonzero(missing):
+            problems[int(i)] = "no value given (the column needs one on every row)"
+    else:
+        values[missing] = rule.if_missing
+    return values, problems
+
+
+def _mask(rows: dict, n: int) -> np.ndarray:
+    mask = np.zeros(n, dtype=bool)
+    mask[list(rows)] = True
+    return mask
+
+
+def _text_cells(column: RawColumn) -> list[str]:
+    """The cells of a column as stripped text ('' where missing)."""
+    out = []
+    for value, missing in zip(column.values, column.missing):
+        out.append("" if missing else (repr(float(value)) if isinstance(value, (float, np.floating))
+                                       else str(value)).strip())
+    return out
+
+
+def _names(raw: RawTable) -> tuple[np.ndarray, list]:
+    """Target names (T1, T2, ... by data row where none is given) and names for messages."""
+    fallback = [f"T{i + 1}" for i in range(len(raw))]
+    column = raw.columns.get("name")
+    if column is None:
+        return np.array(fallback, dtype=object), [None] * len(raw)
+    given = _text_cells(column)
+    names = np.array([g or f for g, f in zip(given, fallback)], dtype=object)
+    return names, [g or None for g in given]
+
+
+def _frames(raw: RawTable, note) -> tuple[np.ndarray, np.ndarray]:
+    """Per-row frame and canonical equinox strings; problems go to note(row, label, message)."""
+    n = len(raw)
+    frame_col, equinox_col = raw.columns.get("frame"), raw.columns.get("equinox")
+    frame_text = _text_cells(frame_col) if frame_col else [""] * n
+    equinox_text = _text_cells(equinox_col) if equinox_col else [""] * n
+    frames, equinoxes = np.full(n, "icrs", dtype=object), np.full(n, "", dtype=object)
+    for i in range(n):
+        try:
+            frames[i] = parse_frame(frame_text[i])
+        except ValueError as err:
+            note(i, frame_col.label, str(err))
+            continue
+        try:
+            equinoxes[i] = parse_equinox(equinox_text[i], frames[i])
+        except ValueError as err:
+            note(i, equinox_col.label, str(err))
+    return frames, equinoxes
+
+
+def warn_skipped(error: InputError) -> None:
+    """The default report of a skipped row: a warning with the error's one-line text."""
+    warnings.warn(str(error), SkippedRowWarning, stacklevel=4)
+
+
+def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> Targets:
+    """Validated ICRS `Targets` from a RawTable (see module docstring)."""
+    names, message_names = _names(raw)
+    problems: dict[int, InputError] = {}
+
+    def note(i: int, label, message: str) -> None:
+        if i not in problems:  # the first problem of a row is the one reported
+            problems[i] = InputError(raw.path, message, line=int(raw.row_numbers[i]),
+                                     column=label, target=message_names[i],
+                                     row_word=raw.row_word)
+
+    for i, (label, message) in raw.row_problems.items():
+        note(i, label, message)
+    values = {}
+    for canonical in ASTROMETRY_COLUMNS + UNCERTAINTY_COLUMNS:
+        column = raw.columns.get(canonical)
+        if column is None:
+            continue
+        values[canonical], column_problems = parse_column(column, RULES[canonical])
+        for i, message in column_problems.items():
+            note(i, column.label, message)
+    frames, equinoxes = _frames(raw, note)
+
+    keep = np.ones(len(raw), dtype=bool)
+    for i in sorted(problems):
+        if not skip_bad_rows:
+            raise problems[i]
+        (on_skip or warn_skipped)(problems[i])
+        keep[i] = False
+    if not keep.any():
+        raise InputError(raw.path, f"no usable targets: all {len(raw)} rows have errors")
+    return _assemble(raw, names, values, frames, equinoxes, keep)
+
+
+def _assemble(raw, names, values, frames, equinoxes, keep) -> Targets:
+    """Targets from the good rows, with FK5/FK4 rows converted to ICRS."""
+    n_kept = int(keep.sum())
+    astrometry = {c: (values[c][keep] if c in values else
+                      np.full(n_kept, RULES[c].if_missing, dtype=float))
+                  for c in ASTROMETRY_COLUMNS}
+    astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry)
+    errors = {c: values[c][keep] for c in UNCERTAINTY_COLUMNS if c in values}
+    extra = {label: np.asarray(column)[keep] for label, column in raw.extra.items()}
+    try:
+        return Targets.from_columns(name=names[keep], errors=errors, extra=extra, **astrometry)
+    except TargetError as err:  # a guard: the rules above should have caught it
+        line = None if err.index is None else int(raw.row_numbers[keep][err.index])
+        label = raw.columns[err.column].label if err.column in raw.columns else err.column
+        raise InputError(raw.path, str(err).split(": ", 1)[-1], line=line, column=label,
+                         row_word=raw.row_word) from None
