@@ -16,7 +16,6 @@ Built once per instant (about 1-2 ms) and then applied to any number of stars. I
 """
 from __future__ import annotations
 
-import warnings
 from dataclasses import dataclass
 
 import erfa
@@ -25,7 +24,7 @@ from astropy.time import Time
 from astropy.utils import iers
 
 from .constants import C_AU_PER_DAY, DEG_TO_RAD
-from .refraction import low_altitude_join_factor
+from .refraction import density_factor, low_altitude_join_factor
 from .site import Site
 from .timescale import check_earth_orientation, jd_pair, parse_time
 
@@ -44,6 +43,7 @@ class SiteContext:
     refa: float  # refraction constants (rad)
     refb: float
     refraction_join: float  # factor joining the low-altitude formula to A, B at 15 deg
+    refraction_horizon: float  # the low-altitude formula's density factor at the horizon
     last_rad: float  # local apparent sidereal time (rad), for hour angles of date
 
 
@@ -94,6 +94,7 @@ def _site_context(site: Site, tt, era_rad: float, gast_rad: float, xp: float, yp
         ypl=float(astrom["ypl"]), sin_lat=float(astrom["sphi"]), cos_lat=float(astrom["cphi"]),
         diurnal_aberration=float(astrom["diurab"]), refa=float(refa), refb=float(refb),
         refraction_join=low_altitude_join_factor(float(refa), float(refb)),
+        refraction_horizon=density_factor(site.pressure, site.temperature),
         last_rad=float(np.mod(gast_rad + elong, 2.0 * np.pi)),
     )
 
@@ -103,10 +104,7 @@ def make_context(when, site: Site | None = None) -> AstrometryContext:
     t = parse_time(when)
     # Warn, never fail, when the Earth-orientation table is stale for this instant.
     eop_warning = check_earth_orientation(t)
-    with warnings.catch_warnings():
-        # ERFA's "dubious year" notes repeat what the staleness check has said.
-        warnings.simplefilter("ignore", erfa.ErfaWarning)
-        tt, tdb, ut1 = jd_pair(t, "tt"), jd_pair(t, "tdb"), jd_pair(t, "ut1")
+    tt, tdb, ut1 = jd_pair(t, "tt"), jd_pair(t, "tdb"), jd_pair(t, "ut1")
 
     # Earth's heliocentric and barycentric position and velocity (AU, AU/day).
     helio_pv, bary_pv = erfa.epv00(*tdb)

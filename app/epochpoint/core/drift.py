@@ -19,7 +19,7 @@ from .context import make_context
 from .spacemotion import propagate, propagate_covariance
 from .uncertainty import error_ellipse_at
 from .targets import Targets
-from .timescale import iso_z
+from .timescale import iso_z, quiet_erfa
 from .vectors import separation, tangent_triad
 
 _RATE_STEP_YEARS = 1.0 / 365.25
@@ -75,6 +75,10 @@ def _crossing_sigma_days(t: Targets, crossing: np.ndarray, rate: np.ndarray) -> 
     return sigma
 
 
+def _jyear_to_iso(epochs: np.ndarray) -> list:
+    return iso_z(Time(epochs, format="jyear", scale="tdb"))
+
+
 def drift(targets: Targets, when, tolerance_arcsec: float) -> ColumnTable:
     """Drift, drift rate, tolerance crossing and position uncertainty of every target at `when`.
 
@@ -93,7 +97,8 @@ def drift(targets: Targets, when, tolerance_arcsec: float) -> ColumnTable:
     crossing_iso = np.array([None] * len(targets), dtype=object)
     finite = np.isfinite(crossing) & (np.abs(crossing) < 1e4)
     if finite.any():
-        crossing_iso[finite] = iso_z(Time(crossing[finite], format="jyear", scale="tdb"))
+        # Crossings centuries away make ERFA doubt the leap-second table; dates suffice.
+        crossing_iso[finite] = quiet_erfa(_jyear_to_iso)(crossing[finite])
     columns = {"name": targets.names(), "drift": drift_now,
                "drift_rate": rate, "over_tolerance": drift_now > tolerance,
                "crossing": crossing_iso,

@@ -74,12 +74,14 @@ def observed_place(p_cirs: np.ndarray, site: SiteContext) -> ObservedPlace:
     alt_topo = np.arctan2(zaet, r)
 
     # Refraction lifts the star towards the zenith by del.
-    delta = refraction_rad(zaet, r, site.refa, site.refb, site.refraction_join)
+    delta = refraction_rad(zaet, r, site.refa, site.refb, site.refraction_join,
+                           site.refraction_horizon)
+    # Rotate by exactly delta (atioq's small-angle form loses 0.04" near the horizon).
     r_safe = np.maximum(r, 1e-6)
-    cosdel = 1.0 - 0.5 * delta * delta
-    f = cosdel - delta * zaet / r_safe
+    cosdel, sindel = np.cos(delta), np.sin(delta)
+    f = cosdel - sindel * zaet / r_safe
     xaeo, yaeo = xaet * f, yaet * f
-    zaeo = cosdel * zaet + delta * r
+    zaeo = cosdel * zaet + sindel * r
     alt = np.arctan2(zaeo, np.hypot(xaeo, yaeo))
 
     # Back to the -HA/Dec frame for the observed hour angle and declination.

@@ -9,10 +9,12 @@ motion from its long-term mean).
 from __future__ import annotations
 
 import datetime as _dt
+import functools
 import warnings
 from dataclasses import dataclass
 from functools import lru_cache
 
+import erfa
 import numpy as np
 from astropy.time import Time
 from astropy.utils import iers
@@ -44,6 +46,16 @@ class EarthOrientationStatus:
     age_days: float  # from the last measured value to now
 
 
+def quiet_erfa(func):
+    """Silence ERFA's "dubious year" notes: the staleness check says it once, in our words."""
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", erfa.ErfaWarning)
+            return func(*args, **kwargs)
+    return wrapper
+
+
 @lru_cache(maxsize=1)
 def _table():
     return iers.IERS_Auto.open()
@@ -59,6 +71,7 @@ def _table_limits() -> tuple[float, float]:
     return float(last_measured), float(mjd[-1])
 
 
+@quiet_erfa
 def _mjd_to_iso(mjd: float) -> str:
     return iso_z(Time(mjd, format="mjd", scale="utc"))
 
@@ -72,6 +85,7 @@ def earth_orientation_status(now: Time | None = None) -> EarthOrientationStatus:
                                   age_days=float(now.utc.mjd - last_measured))
 
 
+@quiet_erfa
 def check_earth_orientation(t: Time) -> str | None:
     """Warn (never fail) when the table is stale for instant t; return the message or None."""
     last_measured, predictions_end = _table_limits()
@@ -90,6 +104,7 @@ def check_earth_orientation(t: Time) -> str | None:
     return message
 
 
+@quiet_erfa
 def parse_time(value) -> Time:
     """An astropy Time (UTC) from an astropy Time, a datetime, 'now', or an ISO 8601 string.
 
@@ -114,6 +129,7 @@ def parse_time(value) -> Time:
     return Time(parsed, scale="utc")
 
 
+@quiet_erfa
 def iso_z(t: Time) -> str | list:
     """ISO 8601 UTC with a trailing Z, to the millisecond."""
     text = t.utc.isot
@@ -122,6 +138,7 @@ def iso_z(t: Time) -> str | list:
     return [str(x) + "Z" for x in np.ravel(text)]
 
 
+@quiet_erfa
 def jd_pair(t: Time, scale: str) -> tuple[float, float]:
     """The two-part Julian date of t in the given scale (tt, tdb, ut1, utc)."""
     converted = getattr(t, scale)

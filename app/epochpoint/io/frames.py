@@ -5,14 +5,15 @@ or fk4 (Besselian system with the E-terms of aberration, equinox default B1950.0
 row's epoch is also the FK4 observation time, which fixes astropy's FK4-to-FK5 rotation
 (Standish 1982, A&A 115, 20; Aoki et al. 1983, A&A 128, 263).
 
-Positions go through astropy.coordinates exactly. Proper motions and radial velocity go through
-the same rotations: FK5 -> ICRS and FK4 (without E-terms) -> FK5 -> ICRS are matrix transforms
-in astropy, which rotate velocities exactly. The one non-linear step, removing the FK4 E-terms
-from the direction, is applied by astropy to the position only; its effect on a proper motion
-is of relative size |E| ~ 1.7e-6 (0.34" of arc), below any catalogue's error, while astropy's own
-finite-difference velocity through that step carries ~1 mas/yr of rounding noise. Parallax is
-unchanged (these frames differ by rotations only). Rows without parallax travel at a nominal
-distance of `NOMINAL_DISTANCE_PC`, so their proper motions convert too; it is dropped after.
+Positions go through astropy.coordinates exactly (FK4 -> FK4 without E-terms -> FK5 -> ICRS,
+or FK5 -> ICRS). Proper motions ride along as a tangential velocity vector at a nominal distance
+(`NOMINAL_DISTANCE_PC`, so rows without parallax convert too): the FK5/FK4-without-E-terms to
+ICRS steps are matrix transforms in astropy, which rotate that vector exactly. The one non-linear
+step, removing the FK4 E-terms of aberration, is applied by astropy to the direction only and the
+velocity vector is kept: this neglects the change of the E-terms along the star's path, a
+relative error below |E| = 1.7e-6 of the proper motion (0.002 mas/yr for 1"/yr). astropy's own
+finite-difference velocity through that step would add ~1 mas/yr of rounding noise instead.
+Parallax and radial velocity are unchanged: these frames differ by rotations only.
 """
 from __future__ import annotations
 
@@ -20,25 +21,26 @@ import warnings
 
 import astropy.units as u
 import numpy as np
-from astropy.coordinates import FK4, FK5, ICRS, FK4NoETerms
+from astropy.coordinates import FK4, FK5, ICRS, CartesianRepresentation, FK4NoETerms
 from astropy.time import Time
 
 from .epochs import split_epoch
+from .errors import quote
 
 FRAMES = ("icrs", "fk5", "fk4")
 DEFAULT_EQUINOX = {"fk5": "J2000.0", "fk4": "B1950.0"}
 # Equinoxes outside these years are refused (precession models are not meant for them).
 EQUINOX_MIN_YEAR, EQUINOX_MAX_YEAR = 1000.0, 3000.0
-# Any distance works for rotations; one megaparsec keeps the numbers well scaled.
+# The distance at which proper motions travel through astropy; any value gives the same
+# rotation, since radial velocity is carried separately.
 NOMINAL_DISTANCE_PC = 1.0e6
-_MAS_PER_PC = 1000.0  # parallax [mas] = 1000 / distance [pc]
 
 
 def parse_frame(text: str) -> str:
     """'icrs', 'fk5' or 'fk4' from a frame cell (case-insensitive); ValueError otherwise."""
     frame = text.strip().lower() or "icrs"
     if frame not in FRAMES:
-        raise ValueError(f"{text.strip()!r} is not a supported frame (icrs, fk5 or fk4)")
+        raise ValueError(f"{quote(text.strip())} is not a supported frame (icrs, fk5 or fk4)")
     return frame
 
 
@@ -51,7 +53,7 @@ def parse_equinox(text: str, frame: str) -> str:
         return DEFAULT_EQUINOX[frame]
     kind, year = split_epoch(text)
     if not EQUINOX_MIN_YEAR <= year <= EQUINOX_MAX_YEAR:
-        raise ValueError(f"equinox {text.strip()!r} is outside the years "
+        raise ValueError(f"equinox {quote(text.strip())} is outside the years "
                          f"{EQUINOX_MIN_YEAR:.0f} to {EQUINOX_MAX_YEAR:.0f}")
     kind = kind or DEFAULT_EQUINOX[frame][0]
     return f"{kind}{year!r}"
@@ -75,33 +77,33 @@ def convert_to_icrs(frame: np.ndarray, equinox: np.ndarray, astrometry: dict) ->
 
 
 def _group_to_icrs(frame: str, equinox: str, a: dict) -> dict:
-    distance_pc = np.where(a["parallax"] > 0.0, _MAS_PER_PC / np.where(a["parallax"] > 0.0,
-                                                                        a["parallax"], 1.0),
-                           NOMINAL_DISTANCE_PC)
-    motion = dict(distance=distance_pc * u.pc,
+    """ICRS ra, dec and proper motion of rows that share one frame and equinox."""
+    equinox_time = Time(equinox)  # 'J2000.0' / 'B1950.0' strings, as astropy reads them
+    position = dict(ra=a["ra"] * u.deg, dec=a["dec"] * u.deg)
+    # The tangential velocity at a nominal distance; radial velocity and distance are
+    # unchanged by these rotations and stay as given.
+    motion = dict(distance=np.full(len(a["ra"]), NOMINAL_DISTANCE_PC) * u.pc,
                   pm_ra_cosdec=a["pm_ra_cosdec"] * (u.mas / u.yr),
                   pm_dec=a["pm_dec"] * (u.mas / u.yr),
-                  radial_velocity=a["radial_velocity"] * (u.km / u.s))
-    equinox_time = Time(equinox)  # 'J2000.0' / 'B1950.0' strings, as astropy reads them
+                  radial_velocity=np.zeros(len(a["ra"])) * (u.km / u.s))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # ERFA "dubious year" for epochs far from today
         if frame == "fk5":
-            source = FK5(ra=a["ra"] * u.deg, dec=a["dec"] * u.deg, equinox=equinox_time, **motion)
+            source = FK5(**position, **motion, equinox=equinox_time)
         else:
             obstime = Time(a["epoch"], format="jyear", scale="tdb")
-            without_eterms = FK4(ra=a["ra"] * u.deg, dec=a["dec"] * u.deg, equinox=equinox_time,
-                                 obstime=obstime).transform_to(
-                FK4NoETerms(equinox=equinox_time, obstime=obstime))
-            source = FK4NoETerms(ra=without_eterms.ra, dec=without_eterms.dec,
-                                 equinox=equinox_time, obstime=obstime, **motion)
+            without_eterms = FK4NoETerms(equinox=equinox_time, obstime=obstime)
+            # Remove the E-terms from the direction (astropy, exact), keep the velocity vector.
+            direction = FK4(**position, equinox=equinox_time, obstime=obstime).transform_to(
+                without_eterms).cartesian
+            velocity = FK4(**position, **motion, equinox=equinox_time, obstime=obstime).velocity
+            source = without_eterms.realize_frame(CartesianRepresentation(
+                direction.xyz * (NOMINAL_DISTANCE_PC * u.pc), differentials=velocity))
         icrs = source.transform_to(ICRS())
-    return dict(ra=_wrap_degrees(icrs.ra.to_value(u.deg)),
-                dec=icrs.dec.to_value(u.deg),
-                epoch=a["epoch"],
-                pm_ra_cosdec=icrs.pm_ra_cosdec.to_value(u.mas / u.yr),
-                pm_dec=icrs.pm_dec.to_value(u.mas / u.yr),
-                parallax=a["parallax"],
-                radial_velocity=icrs.radial_velocity.to_value(u.km / u.s))
+    return dict(ra=_wrap_degrees(icrs.ra.to_value(u.deg)), dec=icrs.dec.to_value(u.deg),
+                epoch=a["epoch"], pm_ra_cosdec=icrs.pm_ra_cosdec.to_value(u.mas / u.yr),
+                pm_dec=icrs.pm_dec.to_value(u.mas / u.yr), parallax=a["parallax"],
+                radial_velocity=a["radial_velocity"])
 
 
 def _wrap_degrees(angle_deg: np.ndarray) -> np.ndarray:

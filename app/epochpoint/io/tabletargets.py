@@ -120,9 +120,11 @@ def _unit(canonical: str):
 def targets_table(targets) -> Table:
     """An astropy Table of a target list, every column with its unit."""
     table = Table()
-    table["name"] = np.array([str(x) for x in targets.name], dtype=str)
     for col in ASTROMETRY_COLUMNS:
         table[col] = Column(np.asarray(getattr(targets, col), dtype=float), unit=_unit(col))
+    # The name goes after ra/dec: astropy's ECSV writer leaves a leading '#' unquoted, which
+    # would turn a first-column name like "#12" into a comment line.
+    table.add_column(np.array([str(x) for x in targets.name], dtype=str), name="name", index=2)
     for col in UNCERTAINTY_COLUMNS:
         if col in targets.errors:
             values = np.asarray(targets.errors[col], dtype=float)
