@@ -33,7 +33,7 @@ def run(args) -> int:
 
 
 def _people(table) -> str:
-    header = [f"Drift at {table.meta['time']} UTC against a tolerance of "
+    header = [f"Drift at {table.meta['time'][:19].replace('T', ' ')} UTC against a tolerance of "
               f"{table.meta['tolerance_arcsec']:g} arcsec: {table.nrows} target(s) listed",
               "Drift: catalogue position to the propagated position now. Crossing: when the "
               "drift reached (or will reach) the tolerance."]

@@ -36,7 +36,8 @@ def _people(table, site, ledger: bool) -> str:
     """Aligned columns for reading at the telescope, with UTC, local and sidereal time."""
     ctx = table.context
     last_deg = np.degrees(ctx.site.last_rad)
-    header = [f"Positions at {table.meta['time']} UTC  |  "
+    utc_text = table.meta["time"][:19].replace("T", " ")
+    header = [f"Positions at {utc_text} UTC  |  "
               f"{common.local_time_text(table.meta['time'], site.timezone)} local  |  "
               f"LST {people_hours(last_deg)}",
               f"Site {table.meta['site']}: lat {site.latitude:+.4f}, lon {site.longitude:+.4f}, "

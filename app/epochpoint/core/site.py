@@ -2,7 +2,9 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
+
+from .limits import Interlocks
 
 
 class SiteError(ValueError):
@@ -28,6 +30,7 @@ class Site:
     latitude, longitude: degrees, longitude positive east; height: metres above the ellipsoid.
     pressure: hPa (None: the standard atmosphere at the site's height; 0 turns refraction off);
     temperature: degrees C; humidity: relative, 0..1; wavelength: micrometres.
+    timezone: IANA name for local times; interlocks: horizon mask, mount limits, Sun avoidance.
     """
 
     latitude: float
@@ -39,6 +42,8 @@ class Site:
     wavelength: float = 0.55
     name: str = ""
     timezone: str = "UTC"
+    # Horizon mask, mount limits and Sun avoidance (on by default).
+    interlocks: Interlocks = field(default_factory=Interlocks)
 
     def __post_init__(self):
         for field_name in ("latitude", "longitude", "height", "temperature", "humidity",
@@ -61,6 +66,8 @@ class Site:
         for field_name, ok, message in checks:
             if not ok:
                 raise SiteError(field_name, f"{getattr(self, field_name)!r} {message}")
+        if not isinstance(self.interlocks, Interlocks):
+            raise SiteError("interlocks", "must be an Interlocks")
 
     def with_weather(self, pressure=None, temperature=None, humidity=None, wavelength=None):
         """A copy with the given weather values replaced (None keeps the site's own)."""

@@ -17,17 +17,14 @@ import csv
 import io
 import json
 import os
-import warnings
 
 import numpy as np
-from astropy.io.votable import from_table
-from astropy.io.votable.tree import Info
 from astropy.table import MaskedColumn, Table
 
+from .astropytables import table_bytes
 from .atomic import atomic_write_text
 from .errors import InputError
 from .peopletable import format_people_table
-from .tabletargets import table_bytes
 
 RESULT_FORMATS = ("csv", "json", "ecsv", "votable", "table")
 
@@ -94,17 +91,6 @@ def result_table(columns, meta, units) -> Table:
     return table
 
 
-def result_votable(table: Table) -> str:
-    votable = from_table(table)
-    for key, value in table.meta.items():
-        votable.resources[0].infos.append(Info(name=key, value="" if value is None else str(value)))
-    out = io.BytesIO()
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        votable.to_xml(out)
-    return out.getvalue().decode("utf-8")
-
-
 def format_result(columns, meta, format: str, units=None, formatters=None) -> str:
     """The text of a result in one of RESULT_FORMATS."""
     if format == "csv":
@@ -114,7 +100,7 @@ def format_result(columns, meta, format: str, units=None, formatters=None) -> st
     if format == "ecsv":
         return table_bytes(result_table(columns, meta, units), "ecsv").decode("utf-8")
     if format == "votable":
-        return result_votable(result_table(columns, meta, units))
+        return table_bytes(result_table(columns, meta, units), "votable").decode("utf-8")
     if format == "table":
         return format_people_table(columns, formatters, meta, units)
     raise InputError(None, f"unknown result format {format!r} (use {', '.join(RESULT_FORMATS)})")

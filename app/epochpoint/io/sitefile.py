@@ -56,10 +56,7 @@ def parse_site_spec(text: str) -> Site:
             values[key] = float(part)
         except ValueError:
             raise InputError(None, f"{label}: {key} {quote(part)} is not a number") from None
-    try:
-        return Site(**values)
-    except SiteError as err:
-        raise InputError(None, f"{label}: {err}") from None
+    return _make_site(None, label, values)
 
 
 def read_site(spec) -> Site:
@@ -121,13 +118,23 @@ def read_site_file(path) -> tuple[Site, dict]:
     values.update({key: _value(path, "weather", key, v) for key, v in weather_table.items()})
     if "timezone" in values:
         _check_timezone(path, values["timezone"])
-    try:
-        site = Site(**values)
-    except SiteError as err:
-        table = "weather" if err.field in WEATHER_KEYS else "site"
-        detail = str(err).split(": ", 1)[-1]
-        raise InputError(path, f"table [{table}], key {err.field}: {detail}") from None
+    site = _make_site(path, None, values)
     return site, {name: document[name] for name in RESERVED_TABLES if name in document}
+
+
+def _make_site(path, label, values: dict) -> Site:
+    """Site(**values) with its validation errors as InputError (naming the TOML table and key
+    for a file, prefixed by `label` for a LAT,LON,HEIGHT string)."""
+    try:
+        return Site(**values)
+    except SiteError as err:
+        detail = str(err).split(": ", 1)[-1]
+        if label is None:
+            table = "weather" if err.field in WEATHER_KEYS else "site"
+            raise InputError(path, f"table [{table}], key {err.field}: {detail}") from None
+        raise InputError(path, f"{label}: {err.field} {detail}") from None
+    except (TypeError, ValueError) as err:  # a value Site's own checks did not foresee
+        raise InputError(path, f"{label or 'site'}: values not usable ({err})") from None
 
 
 def _check_timezone(path: str, name: str) -> None:

@@ -13,34 +13,15 @@ ECSV, null in VOTable), float text is round-trip exact in both formats.
 """
 from __future__ import annotations
 
-import io
-import warnings
-
 import astropy.units as u
 import numpy as np
 from astropy.table import Column, MaskedColumn, Table
 
+from .astropytables import load_table, table_bytes
 from .errors import InputError, quote
-from .filebytes import decode_utf8
 from .targetcolumns import (ASTROMETRY_COLUMNS, DEFAULT_UNITS, UNCERTAINTY_COLUMNS,
                             match_columns)
 from .targetrows import RawColumn, RawTable
-
-FORMAT_NAMES = {"ecsv": "ECSV", "votable": "VOTable"}
-_ASTROPY_FORMATS = {"ecsv": "ascii.ecsv", "votable": "votable"}
-
-
-def _load_table(path: str, data: bytes, fmt: str) -> Table:
-    """An astropy Table from file bytes; anything astropy cannot read is an InputError."""
-    source = decode_utf8(path, data).splitlines() if fmt == "ecsv" else io.BytesIO(data)
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore")  # astropy's VOTable conformance notes
-            return Table.read(source, format=_ASTROPY_FORMATS[fmt])
-    except Exception as err:  # astropy raises many types for malformed files
-        first_line = (str(err).strip().splitlines() or [type(err).__name__])[0][:100]
-        raise InputError(path, f"is not a readable {FORMAT_NAMES[fmt]} file ({first_line})") \
-            from None
 
 
 def _as_text(values: np.ndarray) -> np.ndarray:
@@ -96,7 +77,7 @@ def _extra_values(column) -> np.ndarray:
 
 def read_table_targets(path: str, data: bytes, fmt: str) -> RawTable:
     """The rows of an ECSV ('ecsv') or VOTable ('votable') target file, ready for build_targets."""
-    table = _load_table(path, data, fmt)
+    table = load_table(path, data, fmt)
     labels = list(table.colnames)
     try:
         known, extra = match_columns(labels)
@@ -142,16 +123,3 @@ def targets_table(targets) -> Table:
 def format_table_targets(targets, fmt: str) -> bytes:
     """The bytes of an ECSV ('ecsv') or VOTable ('votable') target file."""
     return table_bytes(targets_table(targets), fmt)
-
-
-def table_bytes(table: Table, fmt: str) -> bytes:
-    """An astropy Table serialized as ECSV or VOTable (UTF-8 bytes)."""
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")  # e.g. VOTable notes on column names that are not XML IDs
-        if fmt == "ecsv":
-            text = io.StringIO()
-            table.write(text, format="ascii.ecsv")
-            return text.getvalue().encode("utf-8")
-        binary = io.BytesIO()
-        table.write(binary, format="votable")
-        return binary.getvalue()

@@ -1,0 +1,150 @@
+"""What the telescope may point at: the horizon mask, the mount's limits and Sun avoidance.
+
+These are the interlocks of the site. They are on by default (a minimum altitude, a 30 degree
+Sun-avoidance radius); every check here is vectorized over targets or times.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+MOUNT_TYPES = ("equatorial", "german", "altaz")
+
+
+class LimitError(ValueError):
+    """An invalid or inconsistent limit, naming the field."""
+
+    def __init__(self, field_name: str, message: str):
+        self.field = field_name
+        super().__init__(f"{field_name}: {message}")
+
+
+@dataclass(frozen=True, eq=False)
+class HorizonMask:
+    """Minimum observed altitude (deg) as a function of azimuth (deg, north through east).
+
+    Points are joined by straight lines in azimuth, wrapping through north; between the last
+    point and 360 deg the profile returns to the first point.
+    """
+
+    azimuth: np.ndarray
+    altitude: np.ndarray
+
+    def __post_init__(self):
+        az = np.asarray(self.azimuth, dtype=float)
+        alt = np.asarray(self.altitude, dtype=float)
+        if az.ndim != 1 or az.shape != alt.shape or az.size < 1:
+            raise LimitError("horizon", "needs matching lists of azimuths and altitudes")
+        if not (np.isfinite(az).all() and np.isfinite(alt).all()):
+            raise LimitError("horizon", "values must be finite numbers")
+        if (az < 0.0).any() or (az >= 360.0).any():
+            raise LimitError("horizon", "azimuths must be in [0, 360) degrees")
+        if (np.diff(az) <= 0.0).any():
+            raise LimitError("horizon", "azimuths must increase strictly")
+        if (alt < -5.0).any() or (alt > 90.0).any():
+            raise LimitError("horizon", "altitudes must be in [-5, 90] degrees")
+        object.__setattr__(self, "azimuth", az)
+        object.__setattr__(self, "altitude", alt)
+
+    def min_altitude(self, az_deg) -> np.ndarray:
+        """The mask's altitude (deg) at azimuths (deg), periodic linear interpolation."""
+        return np.interp(np.mod(az_deg, 360.0), self.azimuth, self.altitude, period=360.0)
+
+
+@dataclass(frozen=True)
+class MountLimits:
+    """Pointing limits of the mount (degrees; hour angles in hours, west positive).
+
+    min_altitude: lowest observed altitude the telescope may point at (also the planner's
+    default altitude limit). ha_east/ha_west: how far east (negative HA) and west of the
+    meridian it may point. dec_min/dec_max: declination range. For a German equatorial
+    mount, meridian_limit is how far past the meridian (degrees of hour angle) it may track
+    before it must flip. slew_rate (deg/s, per axis) and settle (s) time the slews.
+    """
+
+    mount_type: str = "equatorial"
+    min_altitude: float = 10.0
+    ha_east: float = 12.0
+    ha_west: float = 12.0
+    dec_min: float = -90.0
+    dec_max: float = 90.0
+    meridian_limit: float = 5.0
+    slew_rate: float = 3.0
+    settle: float = 10.0
+
+    def __post_init__(self):
+        if self.mount_type not in MOUNT_TYPES:
+            raise LimitError("mount_type", f"{self.mount_type!r} is not one of "
+                             f"{', '.join(MOUNT_TYPES)}")
+        for name in ("min_altitude", "ha_east", "ha_west", "dec_min", "dec_max",
+                     "meridian_limit", "slew_rate", "settle"):
+            value = getattr(self, name)
+            if not isinstance(value, (int, float)) or not np.isfinite(value):
+                raise LimitError(name, f"{value!r} is not a finite number")
+        checks = (
+            ("min_altitude", -5.0 <= self.min_altitude < 90.0, "must be in [-5, 90) degrees"),
+            ("ha_east", 0.0 < self.ha_east <= 12.0, "must be in (0, 12] hours"),
+            ("ha_west", 0.0 < self.ha_west <= 12.0, "must be in (0, 12] hours"),
+            ("dec_min", -90.0 <= self.dec_min < self.dec_max,
+             "must be at least -90 and below dec_max"),
+            ("dec_max", self.dec_max <= 90.0, "must be at most +90"),
+            ("meridian_limit", 0.0 <= self.meridian_limit <= 90.0,
+             "must be in [0, 90] degrees of hour angle"),
+            ("slew_rate", 0.0 < self.slew_rate <= 90.0, "must be in (0, 90] degrees per second"),
+            ("settle", 0.0 <= self.settle <= 3600.0, "must be in [0, 3600] seconds"),
+        )
+        for name, ok, message in checks:
+            if not ok:
+                raise LimitError(name, f"{getattr(self, name)!r} {message}")
+
+    def slew_seconds(self, d_ra_deg, d_dec_deg):
+        """Slew plus settle time for axis moves (both axes at once; common practice)."""
+        d_ra = np.abs((np.asarray(d_ra_deg) + 180.0) % 360.0 - 180.0)
+        return self.settle + np.maximum(d_ra, np.abs(d_dec_deg)) / self.slew_rate
+
+
+@dataclass(frozen=True)
+class Interlocks:
+    """Limits the site enforces before any motion, with Sun avoidance (radius in degrees)."""
+
+    mount: MountLimits = field(default_factory=MountLimits)
+    horizon: HorizonMask | None = None
+    sun_avoidance: float = 30.0
+
+    def __post_init__(self):
+        if not (isinstance(self.sun_avoidance, (int, float)) and
+                0.0 <= self.sun_avoidance <= 90.0):
+            raise LimitError("sun_avoidance", f"{self.sun_avoidance!r} must be in [0, 90] degrees")
+
+    def min_altitude(self, az_deg) -> np.ndarray:
+        """The effective lowest altitude (deg) at azimuths: mount limit or mask, the higher."""
+        floor = np.full(np.shape(az_deg), self.mount.min_altitude, dtype=float)
+        if self.horizon is None:
+            return floor
+        return np.maximum(floor, self.horizon.min_altitude(az_deg))
+
+    def violations(self, alt_deg, az_deg, ha_deg, dec_deg, sun_separation_deg) -> np.ndarray:
+        """Why each pointing is refused ('' when allowed), as an array of short reasons.
+
+        Checked in order of danger: Sun avoidance first, then altitude and horizon, then the
+        mount's hour-angle and declination ranges.
+        """
+        alt_deg, az_deg = np.asarray(alt_deg, dtype=float), np.asarray(az_deg, dtype=float)
+        ha_h = np.asarray(ha_deg, dtype=float) / 15.0
+        dec_deg = np.asarray(dec_deg, dtype=float)
+        reasons = np.full(alt_deg.shape, "", dtype=object)
+        rules = (
+            (np.asarray(sun_separation_deg) < self.sun_avoidance,
+             f"within {self.sun_avoidance:g} deg of the Sun"),
+            (alt_deg < self.mount.min_altitude,
+             f"below the minimum altitude {self.mount.min_altitude:g} deg"),
+            (alt_deg < self.min_altitude(az_deg), "behind the horizon mask"),
+            ((ha_h < -self.mount.ha_east) | (ha_h > self.mount.ha_west),
+             "outside the hour-angle limits"),
+            ((dec_deg < self.mount.dec_min) | (dec_deg > self.mount.dec_max),
+             "outside the declination limits"),
+        )
+        for broken, reason in rules:
+            reasons[(reasons == "") & broken] = reason
+        return reasons
