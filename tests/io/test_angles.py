@@ -93,7 +93,8 @@ def test_format_hours_signed_and_wrapped():
 @given(st.floats(min_value=0.0, max_value=359.999, allow_nan=False))
 def test_ra_format_then_parse_is_within_half_a_digit(ra_deg):
     # 3 decimals of a second of time: the rounding error is at most 0.0005 s = 0.0075 arcsec.
-    assert parse_ra(format_ra_hms(ra_deg, 3)) == pytest.approx(ra_deg, abs=0.0005 * 15 / 3600 + 1e-12)
+    half_digit_deg = 0.0005 * 15 / 3600
+    assert parse_ra(format_ra_hms(ra_deg, 3)) == pytest.approx(ra_deg, abs=half_digit_deg + 1e-12)
 
 
 @given(st.floats(min_value=-90.0, max_value=90.0, allow_nan=False))

@@ -25,7 +25,7 @@ def test_skip_bad_rows_reports_through_callback(write_file):
     path = write_file("targets.csv", CONTRACT_BAD_FILE)
     skipped = []
     targets = read_targets(path, skip_bad_rows=True, on_skip=skipped.append)
-    assert list(targets.name) == ["Good"]
+    assert list(targets.names()) == ["Good"]
     assert len(skipped) == 1 and isinstance(skipped[0], InputError)
     assert skipped[0].line == 3 and skipped[0].target == "Broken"
 
@@ -51,7 +51,7 @@ def test_comments_blank_lines_case_and_spaces(write_file):
                                "\n  Alpha , 12:30:00 , -00:30:00 , J2016.0\n# mid comment\n"
                                "Beta,187.5,+45:15:36,B1950.0\n   \n")
     targets = read_targets(path)
-    assert list(targets.name) == ["Alpha", "Beta"]
+    assert list(targets.names()) == ["Alpha", "Beta"]
     np.testing.assert_allclose(targets.ra, [187.5, 187.5])        # 12.5 h x 15
     np.testing.assert_allclose(targets.dec, [-0.5, 45.26])
     assert targets.epoch[0] == 2016.0
@@ -68,7 +68,7 @@ def test_line_numbers_count_comment_lines(write_file):
 def test_defaults_for_missing_columns_and_empty_cells(write_file):
     path = write_file("t.csv", "ra,dec,pm_dec,parallax,radial_velocity\n10,20,,,\n30,40,5,2,-3\n")
     targets = read_targets(path)
-    assert list(targets.name) == ["T1", "T2"]
+    assert list(targets.names()) == ["T1", "T2"]
     np.testing.assert_array_equal(targets.epoch, [2000.0, 2000.0])
     np.testing.assert_array_equal(targets.pm_ra_cosdec, [0.0, 0.0])
     np.testing.assert_array_equal(targets.pm_dec, [0.0, 5.0])
@@ -110,7 +110,7 @@ def test_gaia_archive_columns_map_onto_ours(write_file):
                       "33.0,1.5,0.02,0.03,0.1,0.2,0.3,0.4,-0.1,-0.2,-0.3,-0.4,0.5,0.6,11.2\n"
                       "987,10.0,5.0,,,1.0,,2.0,,2016.0,,,,,,,,,,,,,,,18.0\n")
     targets = read_targets(path)
-    assert list(targets.name) == ["1234567890123", "987"]
+    assert list(targets.names()) == ["1234567890123", "987"]
     assert targets.pm_ra_cosdec[0] == -120.0 and targets.pm_dec[0] == 45.0
     assert targets.parallax[0] == 12.5 and targets.radial_velocity[0] == 33.0
     assert targets.parallax[1] == 0.0 and targets.radial_velocity[1] == 0.0
@@ -127,14 +127,14 @@ def test_gaia_archive_columns_map_onto_ours(write_file):
 def test_designation_preferred_over_source_id(write_file):
     path = write_file("gaia.csv", "source_id,designation,ra,dec\n42,Gaia DR3 42,1,2\n")
     targets = read_targets(path)
-    assert targets.name[0] == "Gaia DR3 42"
+    assert targets.names()[0] == "Gaia DR3 42"
     assert list(targets.extra["source_id"]) == ["42"]
 
 
 def test_utf8_bom_and_crlf(write_file):
     path = write_file("t.csv", "\ufeffname,ra,dec\r\nÅsa,10,20\r\n")
     targets = read_targets(path)
-    assert targets.name[0] == "Åsa" and targets.ra[0] == 10.0
+    assert targets.names()[0] == "Åsa" and targets.ra[0] == 10.0
 
 
 @pytest.mark.parametrize("row, column, fragment", [
@@ -186,7 +186,8 @@ def test_trailing_comma_columns_are_ignored_when_empty(write_file):
     ("name,ra,RA,dec\nA,1,2,3\n", "appears twice", 1),
     ("name,pmra,pm_ra_cosdec,ra,dec\nA,1,2,3,4\n", "both give pm_ra_cosdec", 1),
     (b"name,ra,dec\nA,1,2\n\xff\xfe,1,2\n", "not UTF-8", 3),
-    ("name,ra,dec\nA,1,2\n\"" + "x" * 200_000 + "\",1,2\n", "not valid CSV", 3),  # > csv field limit
+    # A field longer than the csv module's limit (131072 characters).
+    ("name,ra,dec\nA,1,2\n\"" + "x" * 200_000 + "\",1,2\n", "not valid CSV", 3),
 ])
 def test_whole_file_problems(write_file, content, fragment, line):
     path = write_file("t.csv", content)
@@ -215,3 +216,11 @@ def test_demo_file_reads(pytestconfig):
         pytest.skip("demo file not present")
     targets = read_targets(demo)
     assert len(targets) > 10 and "notes" in targets.extra
+
+
+def test_default_names_follow_the_data_row_when_rows_are_skipped(write_file):
+    path = write_file("t.csv", "ra,dec\n1,1\nbad,2\n3,3\n")
+    skipped = []
+    targets = read_targets(path, skip_bad_rows=True, on_skip=skipped.append)
+    assert list(targets.names()) == ["T1", "T3"]
+    assert skipped[0].target is None and skipped[0].line == 3

@@ -123,7 +123,8 @@ def test_fk4_proper_motions_agree_with_astropy_velocity_transform(write_file):
     """astropy's own velocity transform, whose FK4 E-term step is a 1-second finite
     difference, agrees to its rounding noise (about 1 mas/yr)."""
     targets = read_targets(write_file("fk4.csv", HEADER + FK4_ROWS))
-    ref = _icrs_reference(FK4(ra=FK4_RA * u.deg, dec=FK4_DEC * u.deg, distance=[20, 1e3, 1e3] * u.pc,
+    ref = _icrs_reference(FK4(ra=FK4_RA * u.deg, dec=FK4_DEC * u.deg,
+                              distance=[20, 1e3, 1e3] * u.pc,
                               pm_ra_cosdec=FK4_PM_RA * u.mas / u.yr,
                               pm_dec=FK4_PM_DEC * u.mas / u.yr,
                               radial_velocity=[20, 0, 30] * u.km / u.s,
@@ -137,7 +138,7 @@ def test_icrs_rows_are_untouched_and_mixed_frames_keep_order(write_file):
                                             "F,10.0,20.0,2000.0,5,6,7,8,fk5,\n"
                                             "J,11.0,21.0,2016.0,5,6,7,8,icrs,J2000\n")
     targets = read_targets(path)
-    assert list(targets.name) == ["I", "F", "J"]
+    assert list(targets.names()) == ["I", "F", "J"]
     assert targets.ra[0] == 10.0 and targets.dec[0] == 20.0 and targets.pm_dec[0] == 6.0
     assert targets.ra[2] == 11.0
     assert targets.ra[1] != 10.0

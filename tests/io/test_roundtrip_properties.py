@@ -9,7 +9,7 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 from epochpoint.core.targets import CORRELATION_COLUMNS, ERROR_COLUMNS, Targets
 from epochpoint.io import InputError, read_targets, write_targets
 
-PROPERTY_SETTINGS = settings(max_examples=int(__import__("os").environ.get("EP_EXAMPLES", 60)), deadline=None,
+PROPERTY_SETTINGS = settings(max_examples=60, deadline=None,
                              suppress_health_check=[HealthCheck.function_scoped_fixture])
 
 # Text people put in cells: no control characters or line separators; stripped like CSV cells.
@@ -61,6 +61,46 @@ def test_garbled_tables_raise_only_input_error(tmp_path, content, suffix):
         assert "\n" not in str(err)
 
 
+def _sample_file_bytes(suffix: str) -> bytes:
+    """A valid target file of each format, written once, as the seed for mutations."""
+    import tempfile
+    from pathlib import Path
+
+    targets = Targets.from_columns(
+        name=np.array(["Alpha", "B"], dtype=object), ra=np.array([10.0, 20.0]),
+        dec=np.array([-5.0, 5.0]), epoch=2016.0, pm_ra_cosdec=np.array([1.0, -2.0]),
+        parallax=np.array([3.0, 0.0]), errors={"ra_error": np.array([0.1, np.nan])},
+        extra={"notes": np.array(["x", ""], dtype=object)})
+    with tempfile.TemporaryDirectory() as folder:
+        path = Path(folder) / ("seed" + suffix)
+        write_targets(targets, path)
+        return path.read_bytes()
+
+
+_SEEDS = {suffix: _sample_file_bytes(suffix) for suffix in (".csv", ".ecsv", ".vot")}
+_SPLICES = [b"", b"#", b"\n", b'"', b"<", b">", b"nan", b"-1", b"1e999", b"x", b"\xff", b" ",
+            b"- {name: ra, datatype: string}", b"unit: hourangle", b"datatype: int64", b"</TD>",
+            b"<TD>", b"mas.yr**-1"]
+
+
+@PROPERTY_SETTINGS
+@given(suffix=st.sampled_from(sorted(_SEEDS)),
+       edits=st.lists(st.tuples(st.floats(0.0, 1.0), st.integers(0, 8), st.sampled_from(_SPLICES)),
+                      min_size=1, max_size=4))
+def test_mutated_valid_files_raise_only_input_error(tmp_path, suffix, edits):
+    """A valid file of each format with a few bytes cut or spliced in."""
+    content = _SEEDS[suffix]
+    for where, cut, splice in edits:
+        at = int(where * len(content))
+        content = content[:at] + splice + content[at + cut:]
+    path = tmp_path / ("mutated" + suffix)
+    path.write_bytes(content)
+    try:
+        read_targets(path, skip_bad_rows=True, on_skip=lambda error: None)
+    except InputError as err:
+        assert "\n" not in str(err)
+
+
 def _finite(lo, hi, **kw):
     return st.floats(min_value=lo, max_value=hi, allow_nan=False, allow_infinity=False, **kw)
 
@@ -68,7 +108,10 @@ def _finite(lo, hi, **kw):
 @st.composite
 def target_lists(draw):
     n = draw(st.integers(min_value=1, max_value=5))
-    column = lambda strategy: np.array(draw(st.lists(strategy, min_size=n, max_size=n)))  # noqa: E731
+
+    def column(strategy):
+        return np.array(draw(st.lists(strategy, min_size=n, max_size=n)))
+
     errors = {}
     for col in draw(st.lists(st.sampled_from(ERROR_COLUMNS + CORRELATION_COLUMNS), unique=True,
                              max_size=4)):
@@ -92,7 +135,7 @@ def test_valid_targets_round_trip(tmp_path, suffix, targets):
     path = tmp_path / ("targets" + suffix)
     write_targets(targets, path)
     back = read_targets(path)
-    assert list(back.name) == list(targets.name)
+    assert list(back.names()) == list(targets.names())
     for col in ("ra", "dec", "epoch", "pm_ra_cosdec", "pm_dec", "parallax", "radial_velocity"):
         np.testing.assert_array_equal(getattr(back, col), getattr(targets, col), err_msg=col)
     assert set(back.errors) == set(targets.errors)

@@ -78,7 +78,8 @@ def test_pressure_zero_turns_refraction_off(write_file):
 
 
 @pytest.mark.parametrize("body, fragments", [
-    ("[site]\nlatitude = 1\nlongitude = 2\naltitude = 5\n", ["[site]", "'altitude'", "unknown key"]),
+    ("[site]\nlatitude = 1\nlongitude = 2\naltitude = 5\n",
+     ["[site]", "'altitude'", "unknown key"]),
     ("[site]\nlatitude = 1\nlongitude = 2\n[weather]\nwind = 3\n", ["[weather]", "'wind'"]),
     ("[site]\nlatitude = 1\nlongitude = 2\n[dome]\nx = 1\n", ["'dome'", "unknown table"]),
     ("[site]\nlatitude = 95\nlongitude = 2\n", ["[site]", "latitude", "[-90, +90]"]),

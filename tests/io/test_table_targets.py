@@ -60,7 +60,7 @@ def test_unitless_columns_take_default_units_and_masked_motion_is_zero(tmp_path,
     np.testing.assert_array_equal(targets.pm_ra_cosdec, [3.0, 0.0])
     np.testing.assert_array_equal(targets.parallax, [0.0, 99.0])
     np.testing.assert_array_equal(targets.epoch, [2016.0, 2000.0])
-    assert list(targets.name) == ["T1", "T2"]
+    assert list(targets.names()) == ["T1", "T2"]
     # Planning columns keep numbers numeric; masked numbers are NaN, masked text ''.
     assert targets.extra["priority"].dtype.kind in "iu"
     assert list(targets.extra["priority"]) == [1, 2]
@@ -83,7 +83,7 @@ def test_bad_row_is_named_by_data_row(tmp_path, fmt):
     assert (info.value.line, info.value.target, info.value.column) == (2, "Broken", "dec")
     assert "row 2 (Broken), column dec" in str(info.value)
     skipped = []
-    assert list(read_targets(path, skip_bad_rows=True, on_skip=skipped.append).name) == ["Good"]
+    assert list(read_targets(path, skip_bad_rows=True, on_skip=skipped.append).names()) == ["Good"]
     assert [s.line for s in skipped] == [2]
 
 
@@ -134,3 +134,56 @@ def test_votable_detected_by_content(tmp_path):
     path = tmp_path / "targets.dat"
     path.write_bytes(buffer.getvalue())
     assert read_targets(path).dec[0] == 20.0
+
+
+GAIA_STYLE_VOTABLE = """<?xml version="1.0" encoding="UTF-8"?>
+<VOTABLE version="1.4" xmlns="http://www.ivoa.net/xml/VOTable/v1.3">
+ <RESOURCE type="results">
+  <TABLE>
+   <FIELD name="source_id" datatype="long"/>
+   <FIELD name="ra" datatype="double" unit="deg"/>
+   <FIELD name="dec" datatype="double" unit="deg"/>
+   <FIELD name="parallax" datatype="double" unit="mas"/>
+   <FIELD name="pmra" datatype="double" unit="mas.yr**-1"/>
+   <FIELD name="pmdec" datatype="double" unit="mas.yr**-1"/>
+   <FIELD name="radial_velocity" datatype="float" unit="km.s**-1"/>
+   <FIELD name="ref_epoch" datatype="double" unit="yr"/>
+   <FIELD name="pmra_pmdec_corr" datatype="float"/>
+   <FIELD name="phot_g_mean_mag" datatype="float" unit="mag"/>
+   <DATA><TABLEDATA>
+    <TR><TD>4472832130942575872</TD><TD>269.45</TD><TD>4.69</TD><TD>546.97</TD><TD>-801.55</TD>
+        <TD>10362.39</TD><TD>-110.5</TD><TD>2016.0</TD><TD>0.25</TD><TD>8.19</TD></TR>
+    <TR><TD>17</TD><TD>10.0</TD><TD>-5.0</TD><TD></TD><TD>1.5</TD><TD>-2.5</TD><TD></TD>
+        <TD>2016.0</TD><TD></TD><TD>19.9</TD></TR>
+   </TABLEDATA></DATA>
+  </TABLE>
+ </RESOURCE>
+</VOTABLE>
+"""
+
+
+def test_gaia_archive_style_votable(write_file):
+    """Column names, types and unit strings as the Gaia archive writes them (Gaia DR3 data
+    model); values invented, nulls as empty cells."""
+    targets = read_targets(write_file("gaia.vot", GAIA_STYLE_VOTABLE))
+    assert list(targets.names()) == ["4472832130942575872", "17"]
+    np.testing.assert_allclose(targets.pm_ra_cosdec, [-801.55, 1.5])
+    np.testing.assert_allclose(targets.pm_dec, [10362.39, -2.5])
+    np.testing.assert_allclose(targets.parallax, [546.97, 0.0])         # null parallax: zero
+    np.testing.assert_allclose(targets.radial_velocity, [-110.5, 0.0], rtol=1e-6)
+    np.testing.assert_array_equal(targets.epoch, [2016.0, 2016.0])
+    corr = targets.errors["pm_ra_cosdec_pm_dec_corr"]
+    assert corr[0] == pytest.approx(0.25) and np.isnan(corr[1])          # null: unknown
+    np.testing.assert_allclose(targets.extra["phot_g_mean_mag"], [8.19, 19.9], rtol=1e-6)
+
+
+def test_ecsv_time_columns(tmp_path):
+    """ECSV can hold astropy Time columns: an epoch Time becomes a Julian year, a Time
+    planning column ISO 8601 UTC text with Z."""
+    from astropy.time import Time
+
+    table = Table({"ra": [1.0], "dec": [2.0], "epoch": Time([2016.0], format="jyear"),
+                   "not_before": Time(["2027-01-20T23:10:00"], scale="utc")})
+    targets = read_targets(_save(table, tmp_path / "t.ecsv", "ecsv"))
+    assert targets.epoch[0] == pytest.approx(2016.0, abs=1e-9)
+    assert list(targets.extra["not_before"]) == ["2027-01-20T23:10:00.000Z"]

@@ -41,7 +41,7 @@ def _people(table) -> str:
                PeopleColumn('Drift"', "drift", "{:10.3f}"),
                PeopleColumn('Rate "/yr', "drift_rate", "{:9.4f}"),
                PeopleColumn("Over", "over_tolerance", "{}"),
-               PeopleColumn("Crossing (UTC)", "crossing", str),
+               PeopleColumn("Crossing (UTC)", "crossing", "date"),
                PeopleColumn("+- days", "crossing_sigma_days", "{:8.1f}")]
     if "error_major" in table:
         columns += [PeopleColumn("Err maj mas", "error_major", "{:8.3f}"),

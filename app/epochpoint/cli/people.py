@@ -1,54 +1,45 @@
-"""Plain-text tables for people: aligned columns, sexagesimal angles, blanks for no value."""
+"""Plain-text tables for people: which result columns to show, under which heading, and how
+(sexagesimal angles, fixed decimals). The layout itself is io.format_people_table."""
 from __future__ import annotations
 
 from dataclasses import dataclass
 
 import numpy as np
 
+from ..io import format_dec_dms, format_hours, format_people_table, format_ra_hms
+from ..io.peopletable import default_cells
+
 
 @dataclass(frozen=True)
 class PeopleColumn:
-    """A column heading, the result column it shows, and how: 'ra', 'dec', 'hours', str or a
-    format string such as '{:6.2f}'."""
+    """A column heading, the result column it shows, and how: 'ra', 'dec', 'hours', 'date',
+    str, or a format string such as '{:6.2f}'."""
 
     heading: str
     column: str
     style: object
 
 
-def _cells(values, style) -> list[str]:
-    from ..io import format_dec_dms, format_hours, format_ra_hms
-
+def _formatter(style):
     if style == "ra":
-        return list(format_ra_hms(np.asarray(values, dtype=float), 2))
+        return lambda v: format_ra_hms(np.asarray(v, dtype=float), 2)
     if style == "dec":
-        return list(format_dec_dms(np.asarray(values, dtype=float), 1))
+        return lambda v: format_dec_dms(np.asarray(v, dtype=float), 1)
     if style == "hours":
-        return list(format_hours(np.asarray(values, dtype=float), 1))
+        return lambda v: format_hours(np.asarray(v, dtype=float), 1)
+    if style == "date":
+        return lambda v: ["" if x is None else str(x)[:16].replace("T", " ") for x in v]
     if style is str:
-        return ["" if v is None else str(v) for v in values]
-    out = []
-    for v in values:
-        if v is None or (isinstance(v, float) and not np.isfinite(v)):
-            out.append("")
-        elif isinstance(v, (bool, np.bool_)):
-            out.append("yes" if v else "no")
-        else:
-            out.append(style.format(v))
-    return out
+        return default_cells
+
+    def numbers(values):
+        cells = default_cells(values)
+        return [c if c in ("", "yes", "no") else style.format(v) for c, v in zip(cells, values)]
+    return numbers
 
 
 def people_table(table, columns: list[PeopleColumn], header_lines: list[str]) -> str:
-    """Header lines, then one aligned row per target (text left-aligned, numbers right)."""
-    cells = [[c.heading] + _cells(table[c.column], c.style) for c in columns]
-    widths = [max(len(x) for x in col) for col in cells]
-    lines = list(header_lines) + [""]
-    for row in range(len(cells[0])):
-        parts = []
-        for col, (c, width) in enumerate(zip(columns, widths)):
-            text = cells[col][row]
-            parts.append(text.ljust(width) if c.style is str else text.rjust(width))
-        lines.append("  ".join(parts).rstrip())
-        if row == 0:
-            lines.append("  ".join("-" * w for w in widths))
-    return "\n".join(lines) + "\n"
+    """Header lines, a blank line, then one aligned row per target."""
+    shown = {c.heading: table[c.column] for c in columns}
+    formatters = {c.heading: _formatter(c.style) for c in columns}
+    return "\n".join(header_lines) + "\n\n" + format_people_table(shown, formatters)

@@ -51,12 +51,13 @@ class Site:
             value = getattr(self, field_name)
             if not isinstance(value, (int, float)) or not math.isfinite(value):
                 raise SiteError(field_name, f"{value!r} is not a finite number")
+        if not -500.0 <= self.height <= 10000.0:
+            raise SiteError("height", f"{self.height!r} must be in [-500, 10000] m")
         if self.pressure is None:
             object.__setattr__(self, "pressure", standard_pressure_hpa(self.height))
         checks = (
             ("latitude", abs(self.latitude) <= 90.0, "must be in [-90, +90] degrees"),
             ("longitude", -360.0 <= self.longitude <= 360.0, "must be in [-360, +360] degrees"),
-            ("height", -500.0 <= self.height <= 10000.0, "must be in [-500, 10000] m"),
             ("pressure", math.isfinite(self.pressure) and 0.0 <= self.pressure <= 1200.0,
              "must be in [0, 1200] hPa"),
             ("temperature", -80.0 <= self.temperature <= 60.0, "must be in [-80, +60] C"),

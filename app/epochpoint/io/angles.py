@@ -26,7 +26,7 @@ _SEPARATOR = re.compile(r"\s*:\s*|\s+")
 
 
 def _split_sexagesimal(text: str) -> list[float] | None:
-    """[units, minutes(, seconds)] from 'u:m(:s)' or 'u m (s)', or None if text is not of that form."""
+    """[units, minutes(, seconds)] from 'u:m(:s)' or 'u m (s)'; None for any other form."""
     parts = _SEPARATOR.split(text)
     if len(parts) not in (2, 3) or not all(_FIELD.fullmatch(p) for p in parts):
         return None

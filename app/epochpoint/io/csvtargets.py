@@ -88,7 +88,7 @@ def read_csv_targets(path: str, data: bytes) -> RawTable:
 
 
 def _drop_unnamed_columns(path, header_line, labels, rows):
-    """Drop trailing-comma columns: an unnamed column is allowed only while all its cells are empty."""
+    """Drop trailing-comma columns: an unnamed column is allowed only if all its cells are empty."""
     unnamed = [i for i, label in enumerate(labels) if not label]
     for i in unnamed:
         for line, cells in rows:
@@ -116,7 +116,7 @@ def _cell_text(values: np.ndarray) -> list[str]:
 
 def format_csv_targets(targets) -> str:
     """The CSV text of a target list (see module docstring)."""
-    columns = {"name": [str(x) for x in targets.name]}
+    columns = {"name": [str(x) for x in targets.names()]}
     for col in ASTROMETRY_COLUMNS:
         columns[col] = _float_text(getattr(targets, col))
     for col in UNCERTAINTY_COLUMNS:

@@ -42,6 +42,10 @@ class InputError(ValueError):
         self.message, self.row_word = _one_line(message), row_word
         super().__init__(self._render())
 
+    def __reduce__(self):  # picklable, e.g. across worker processes
+        return (type(self), (self.path, self.message, self.line, self.column, self.target,
+                             self.row_word))
+
     def _render(self) -> str:
         where = [] if self.path is None else [_one_line(self.path)]
         if self.line is not None:

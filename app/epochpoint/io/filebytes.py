@@ -1,4 +1,4 @@
-"""Reading a user's file: its bytes and its UTF-8 text, with every failure as one-line InputError."""
+"""Reading a user's file: its bytes and its UTF-8 text, every failure as a one-line InputError."""
 from __future__ import annotations
 
 import os
@@ -21,7 +21,7 @@ def read_file_bytes(path) -> bytes:
 
 
 def decode_utf8(path, data: bytes) -> str:
-    """UTF-8 text (a byte-order mark is dropped), or an InputError naming the line of the bad byte."""
+    """UTF-8 text (a byte-order mark is dropped); InputError naming the line of a bad byte."""
     try:
         return data.decode("utf-8-sig")
     except UnicodeDecodeError as err:

@@ -39,6 +39,10 @@ def _python_value(v):
         return int(v)
     if isinstance(v, (float, np.floating)):
         return float(v) if np.isfinite(v) else None
+    if isinstance(v, (list, tuple, np.ndarray)):  # e.g. a list of windows per target
+        return [_python_value(x) for x in v]
+    if isinstance(v, dict):
+        return {str(k): _python_value(x) for k, x in v.items()}
     return str(v)
 
 
@@ -56,17 +60,20 @@ def _one_line(value) -> str:
 
 
 def result_csv(columns, meta) -> str:
+    """CSV text: `# key: value` meta lines, a header row, one row per result row."""
     out = io.StringIO()
     for key, value in (meta or {}).items():
         out.write(f"# {key}: {_one_line(value)}\n")
     writer = csv.writer(out, lineterminator="\n")
     writer.writerow(list(columns))
-    cells = [[_csv_cell(v) for v in np.asarray(values, dtype=object)] for values in columns.values()]
+    cells = [[_csv_cell(v) for v in np.asarray(values, dtype=object)]
+             for values in columns.values()]
     writer.writerows(zip(*cells))
     return out.getvalue()
 
 
 def result_json(columns) -> str:
+    """A JSON list with one object per row, one row per line."""
     names = list(columns)
     values = [[_python_value(v) for v in np.asarray(col, dtype=object)] for col in columns.values()]
     rows = [json.dumps(dict(zip(names, row)), allow_nan=False) for row in zip(*values)]

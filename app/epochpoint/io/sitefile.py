@@ -10,7 +10,7 @@ Site file schema (Epochpoint's own; TOML 1.0, read with tomllib)::
     timezone = "America/Argentina/San_Juan"   # IANA name, checked with zoneinfo (default UTC)
 
     [weather]               # default conditions (optional); command-line options override them
-    pressure = 760.0        # hPa; omit for the standard atmosphere at the site height; 0 = no refraction
+    pressure = 760.0        # hPa; omit: standard atmosphere at the site height; 0: no refraction
     temperature = 8.0       # degrees C (default 10)
     humidity = 0.25         # relative, 0..1 (default 0.5)
     wavelength = 0.55       # micrometres (default 0.55)
@@ -102,8 +102,8 @@ def read_site_file(path) -> tuple[Site, dict]:
     document = _load_toml(path)
     for name, table in document.items():
         if name not in ("site", "weather") + RESERVED_TABLES:
-            raise InputError(path, f"unknown table or key {quote(name)} (known tables: "
-                                   f"[site], [weather], {', '.join(f'[{t}]' for t in RESERVED_TABLES)})")
+            known = ", ".join(f"[{t}]" for t in ("site", "weather") + RESERVED_TABLES)
+            raise InputError(path, f"unknown table or key {quote(name)} (known tables: {known})")
         if not isinstance(table, dict):
             raise InputError(path, f"{name} must be a table, written [{name}]")
     if "site" not in document:

@@ -16,6 +16,7 @@ from __future__ import annotations
 import astropy.units as u
 import numpy as np
 from astropy.table import Column, MaskedColumn, Table
+from astropy.time import Time
 
 from .astropytables import load_table, table_bytes
 from .errors import InputError, quote
@@ -41,6 +42,22 @@ def _unit_factor(path: str, label: str, unit, canonical: str) -> float:
         wanted = ours.to_string() or "a plain number"
         raise InputError(path, f"unit {quote(unit)} cannot be converted to {wanted}",
                          column=label) from None
+
+
+def _plain_column(path: str, label: str, canonical: str | None, column) -> Column:
+    """A plain Column from astropy's mixin columns (ECSV can hold Time, SkyCoord, ...): a Time
+    gives Julian years (TDB) for the epoch and ISO 8601 UTC text elsewhere."""
+    if isinstance(column, Column):
+        return column
+    if isinstance(column, Time):
+        values = column.tdb.jyear if canonical == "epoch" else [t + "Z" for t in column.utc.isot]
+        return Column(values, name=label)
+    if isinstance(column, u.Quantity):
+        return Column(column.value, name=label, unit=column.unit)
+    if canonical is not None:
+        raise InputError(path, f"holds {type(column).__name__} objects, not plain values",
+                         column=label)
+    return Column([" ".join(str(v).split()) for v in column], name=label)
 
 
 def _raw_column(path: str, canonical: str, column) -> RawColumn:
@@ -88,10 +105,13 @@ def read_table_targets(path: str, data: bytes, fmt: str) -> RawTable:
             raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})")
     if len(table) == 0:
         raise InputError(path, "has no targets")
-    columns = {c: _raw_column(path, c, table.columns[i]) for c, i in known.items()}
+
+    def column(i: int, canonical: str | None = None) -> Column:
+        return _plain_column(path, labels[i], canonical, table.columns[i])
+
     return RawTable(path=path, row_numbers=np.arange(1, len(table) + 1), row_word="row",
-                    columns=columns,
-                    extra={labels[i]: _extra_values(table.columns[i]) for i in extra})
+                    columns={c: _raw_column(path, c, column(i, c)) for c, i in known.items()},
+                    extra={labels[i]: _extra_values(column(i)) for i in extra})
 
 
 def _unit(canonical: str):
@@ -105,7 +125,7 @@ def targets_table(targets) -> Table:
         table[col] = Column(np.asarray(getattr(targets, col), dtype=float), unit=_unit(col))
     # The name goes after ra/dec: astropy's ECSV writer leaves a leading '#' unquoted, which
     # would turn a first-column name like "#12" into a comment line.
-    table.add_column(np.array([str(x) for x in targets.name], dtype=str), name="name", index=2)
+    table.add_column(np.array([str(x) for x in targets.names()], dtype=str), name="name", index=2)
     for col in UNCERTAINTY_COLUMNS:
         if col in targets.errors:
             values = np.asarray(targets.errors[col], dtype=float)

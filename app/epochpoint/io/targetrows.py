@@ -45,7 +45,8 @@ class RawTable:
     row_word: str  # "line" or "row", how row_numbers are named in messages
     columns: dict  # canonical name -> RawColumn
     extra: dict = field(default_factory=dict)  # label -> array, carried along untouched
-    row_problems: dict = field(default_factory=dict)  # row index -> (label, message), from the reader
+    # Problems the reader found (e.g. a wrong cell count): row index -> (label, message).
+    row_problems: dict = field(default_factory=dict)
 
     def __len__(self) -> int:
         return len(self.row_numbers)
@@ -146,35 +147,53 @@ def _text_cells(column: RawColumn) -> list[str]:
     return out
 
 
-def _names(raw: RawTable) -> tuple[np.ndarray, list]:
-    """Target names (T1, T2, ... by data row where none is given) and names for messages."""
-    fallback = [f"T{i + 1}" for i in range(len(raw))]
+def _fallback_names(n: int) -> np.ndarray:
+    """T1, T2, ... by data row, so a name stays the same when other rows are skipped."""
+    return np.array([f"T{i + 1}" for i in range(n)], dtype=object)
+
+
+def _names(raw: RawTable) -> tuple[np.ndarray | None, list]:
+    """Target names (None when the file has no name column) and names for messages."""
     column = raw.columns.get("name")
     if column is None:
-        return np.array(fallback, dtype=object), [None] * len(raw)
+        return None, [None] * len(raw)
     given = _text_cells(column)
-    names = np.array([g or f for g, f in zip(given, fallback)], dtype=object)
+    names = np.array([g or f for g, f in zip(given, _fallback_names(len(raw)))], dtype=object)
     return names, [g or None for g in given]
 
 
 def _frames(raw: RawTable, note) -> tuple[np.ndarray, np.ndarray]:
-    """Per-row frame and canonical equinox strings; problems go to note(row, label, message)."""
+    """Per-row frame and canonical equinox strings; problems go to note(row, label, message).
+
+    Each distinct (frame, equinox) text is parsed once: a file repeats a handful of them.
+    """
     n = len(raw)
-    frame_col, equinox_col = raw.columns.get("frame"), raw.columns.get("equinox")
-    frame_text = _text_cells(frame_col) if frame_col else [""] * n
-    equinox_text = _text_cells(equinox_col) if equinox_col else [""] * n
     frames, equinoxes = np.full(n, "icrs", dtype=object), np.full(n, "", dtype=object)
-    for i in range(n):
-        try:
-            frames[i] = parse_frame(frame_text[i])
-        except ValueError as err:
-            note(i, frame_col.label, str(err))
-            continue
-        try:
-            equinoxes[i] = parse_equinox(equinox_text[i], frames[i])
-        except ValueError as err:
-            note(i, equinox_col.label, str(err))
+    frame_col, equinox_col = raw.columns.get("frame"), raw.columns.get("equinox")
+    if frame_col is None:
+        return frames, equinoxes  # without a frame column every row is ICRS
+    equinox_text = _text_cells(equinox_col) if equinox_col else [""] * n
+    parsed: dict = {}
+    for i, key in enumerate(zip(_text_cells(frame_col), equinox_text)):
+        if key not in parsed:
+            parsed[key] = _parse_frame_pair(*key, frame_col.label,
+                                            equinox_col.label if equinox_col else "equinox")
+        frames[i], equinoxes[i], problem = parsed[key]
+        if problem is not None:
+            note(i, *problem)
     return frames, equinoxes
+
+
+def _parse_frame_pair(frame_text: str, equinox_text: str, frame_label: str, equinox_label: str):
+    """(frame, equinox, problem): problem is None or (column label, message)."""
+    try:
+        frame = parse_frame(frame_text)
+    except ValueError as err:
+        return "icrs", "", (frame_label, str(err))
+    try:
+        return frame, parse_equinox(equinox_text, frame), None
+    except ValueError as err:
+        return "icrs", "", (equinox_label, str(err))
 
 
 def warn_skipped(error: InputError) -> None:
@@ -225,8 +244,11 @@ def _assemble(raw, names, values, frames, equinoxes, keep) -> Targets:
     astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry)
     errors = {c: values[c][keep] for c in UNCERTAINTY_COLUMNS if c in values}
     extra = {label: np.asarray(column)[keep] for label, column in raw.extra.items()}
+    if names is None and not keep.all():
+        names = _fallback_names(len(raw))
     try:
-        return Targets.from_columns(name=names[keep], errors=errors, extra=extra, **astrometry)
+        return Targets.from_columns(name=None if names is None else names[keep], errors=errors,
+                                    extra=extra, **astrometry)
     except TargetError as err:  # a guard: the rules above should have caught it
         line = None if err.index is None else int(raw.row_numbers[keep][err.index])
         label = raw.columns[err.column].label if err.column in raw.columns else err.column
