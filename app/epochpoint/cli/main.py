@@ -8,10 +8,10 @@ import sys
 import warnings
 
 from ..core.timescale import StaleEarthOrientation
-from . import drift_cmd, positions_cmd
+from . import drift_cmd, plan_cmd, positions_cmd
 
 EXIT_INPUT_ERROR = 2
-COMMANDS = {"positions": positions_cmd, "drift": drift_cmd}
+COMMANDS = {"positions": positions_cmd, "drift": drift_cmd, "plan": plan_cmd}
 
 
 class _Parser(argparse.ArgumentParser):

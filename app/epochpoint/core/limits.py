@@ -98,11 +98,6 @@ class MountLimits:
             if not ok:
                 raise LimitError(name, f"{getattr(self, name)!r} {message}")
 
-    def slew_seconds(self, d_ra_deg, d_dec_deg):
-        """Slew plus settle time for axis moves (both axes at once; common practice)."""
-        d_ra = np.abs((np.asarray(d_ra_deg) + 180.0) % 360.0 - 180.0)
-        return self.settle + np.maximum(d_ra, np.abs(d_dec_deg)) / self.slew_rate
-
 
 @dataclass(frozen=True)
 class Interlocks:

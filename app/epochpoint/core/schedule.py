@@ -8,9 +8,9 @@
 
 `duration_s[i]` is exposure x repeats, observed in one piece inside ONE of the windows
 `windows_s[i]` (a list of (start, end) seconds from the night's start, all constraints already
-applied). Slews come from `ra_deg`, `dec_deg` and a `Mount` (schedule_model.slew_table_s), or
+applied). Slews come from `ra_deg`, `dec_deg` and a `Mount` (schedule_slew.py), or
 from `slew_s`: an (n + 1, n) table or a vectorised callable f(from_index, to_index), index n
-meaning the park. The model is in schedule_model.py, the greedy baseline in
+meaning the park. The problem and its answer are in schedule_model.py, the greedy baseline in
 schedule_greedy.py and the search in schedule_search.py.
 
 Determinism: for a given input, `seed` and iteration limits the result is the same every time,
@@ -25,10 +25,11 @@ import time
 import numpy as np
 
 from .schedule_greedy import greedy_order
-from .schedule_model import (DISPLACED, NO_WINDOW, NO_WINDOW_LONG_ENOUGH, Entry, Mount,
-                             Schedule, ScheduleInputError, Unscheduled, make_schedule,
-                             night_problem, priority_weight, slew_table_s)
+from .schedule_model import (DISPLACED, NO_WINDOW, NO_WINDOW_LONG_ENOUGH, Entry, Schedule,
+                             ScheduleInputError, Unscheduled, make_schedule, night_problem,
+                             priority_weight)
 from .schedule_search import evaluate, improve, recreate
+from .schedule_slew import Mount, slew_table_s
 
 __all__ = ["schedule", "greedy_schedule", "priority_weight", "Mount", "slew_table_s",
            "Schedule", "Entry", "Unscheduled", "ScheduleInputError", "NO_WINDOW",

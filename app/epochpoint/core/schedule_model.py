@@ -7,7 +7,7 @@ target's windows (every constraint, altitude, mount limits, Moon, darkness, alre
 
 Slews live in one table `slew_s` of shape (n + 1, n + 1): entry [a, b] is the time from
 target a to target b; row n is the park position (the mount's place at the night's start)
-and column n the end of the night (always 0 s). `slew_table_s` builds it for an equatorial
+and column n the end of the night (always 0 s). schedule_slew.py builds it for an equatorial
 mount; any other table (or callable) with that layout may be passed instead.
 
 Earliest-start timing of a fixed order is optimal: the earliest start of a block is a
@@ -25,6 +25,10 @@ from typing import NamedTuple
 
 import numpy as np
 
+# Why a target is left out. No window: none at all, or none overlapping the night. No window
+# long enough: no window holds the block (counting the slew from the park when the block
+# would open the night). Displaced: it fits on its own but the best order found is worth more
+# without it.
 NO_WINDOW = "no window"
 NO_WINDOW_LONG_ENOUGH = "no window long enough"
 DISPLACED = "displaced by higher-value targets"
@@ -54,45 +58,6 @@ def priority_weight(priority):
                                  f"{p.ravel()[first or 0]!r} is not a whole number 1 to 5")
     weight = 2.0 ** (5.0 - p)
     return float(weight) if weight.ndim == 0 else weight
-
-
-@dataclass(frozen=True)
-class Mount:
-    """How an equatorial mount moves: both axes slew at once at `slew_rate_deg_s`, then it
-    settles for `settle_s` seconds; optional park position as right ascension and declination.
-
-    The park is fixed on the mount (an hour angle), so its right ascension is the local
-    sidereal time at the night's start minus the park hour angle; the first slew is reckoned
-    with that value (exact when the first block starts near the night's start).
-    """
-    settle_s: float
-    slew_rate_deg_s: float
-    park_ra_deg: float | None = None
-    park_dec_deg: float | None = None
-
-
-def _axis_slew_deg(ra_a, dec_a, ra_b, dec_b):
-    """Largest axis travel (deg). At one instant the hour-angle difference of two targets
-    equals minus their right-ascension difference (same local sidereal time), so the polar
-    axis turns by |delta ra| wrapped to +-180 deg. The sky turns 15 arcsec/s during a slew and
-    German-mount meridian flips are not modelled (common practice for a planning estimate)."""
-    d_ra = (np.asarray(ra_b) - np.asarray(ra_a) + 180.0) % 360.0 - 180.0
-    return np.maximum(np.abs(d_ra), np.abs(np.asarray(dec_b) - np.asarray(dec_a)))
-
-
-def slew_table_s(ra_deg, dec_deg, mount: Mount) -> np.ndarray:
-    """(n + 1, n + 1) slew times (s): settle + largest axis travel / rate. Row n: from the
-    park (settle alone when no park is given); column n: to the end of the night (0 s)."""
-    ra, dec = np.asarray(ra_deg, dtype=float), np.asarray(dec_deg, dtype=float)
-    n = ra.size
-    table = np.zeros((n + 1, n + 1))
-    travel = _axis_slew_deg(ra[:, None], dec[:, None], ra[None, :], dec[None, :])
-    table[:n, :n] = mount.settle_s + travel / mount.slew_rate_deg_s
-    table[n, :n] = mount.settle_s
-    if mount.park_ra_deg is not None and mount.park_dec_deg is not None:
-        table[n, :n] += _axis_slew_deg(mount.park_ra_deg, mount.park_dec_deg, ra, dec) \
-            / mount.slew_rate_deg_s
-    return table
 
 
 def _positive_column(values, n, argument):

@@ -57,13 +57,12 @@ class SkyTrack:
 def build_sky_track(site: Site, t_ref: Time, duration_s: float,
                     step_s: float = TRACK_STEP_S) -> SkyTrack:
     """Sample the Sun and the Moon from t_ref over duration_s seconds."""
-    from .sunmoon import moon_track, sun_altaz
+    from .sunmoon import moon_track
 
     t = np.arange(0.0, duration_s + step_s, step_s)
-    times = t_ref + TimeDelta(t, format="sec")
-    sun_alt, _ = sun_altaz(site, times)
-    moon = moon_track(site, times)
-    return SkyTrack(t_ref=t_ref, t=t, sun_unit=_unit(moon.sun_ra, moon.sun_dec),
-                    sun_alt=np.asarray(sun_alt, dtype=float),
-                    moon_unit=_unit(moon.ra, moon.dec), moon_alt=np.asarray(moon.alt, dtype=float),
-                    moon_illumination=np.asarray(moon.illumination, dtype=float))
+    track = moon_track(site, t_ref + TimeDelta(t, format="sec"))
+    return SkyTrack(t_ref=t_ref, t=t, sun_unit=_unit(track.sun_ra_deg, track.sun_dec_deg),
+                    sun_alt=np.asarray(track.sun_alt_deg, dtype=float),
+                    moon_unit=_unit(track.ra_deg, track.dec_deg),
+                    moon_alt=np.asarray(track.alt_deg, dtype=float),
+                    moon_illumination=np.asarray(track.illumination, dtype=float))

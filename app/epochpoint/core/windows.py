@@ -67,6 +67,12 @@ class TargetWindows:
     dec: np.ndarray
     reason: np.ndarray
     dark: list = field(default_factory=list)
+    geometry: object = None
+
+    def observed_altaz(self, indices, t) -> tuple[np.ndarray, np.ndarray]:
+        """Observed altitude and azimuth (deg) of targets `indices` at times t (seconds);
+        broadcasts like numpy (e.g. indices[:, None] with t[None, :] gives a grid)."""
+        return self.geometry.observed_altaz(np.asarray(indices), np.asarray(t, dtype=float))
 
 
 class _Geometry:
@@ -137,7 +143,7 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
         windows.append(pieces)
     return TargetWindows(names=targets.names(), windows=windows, transit=transit,
                          max_altitude=max_alt, ra=geo.ra, dec=geo.dec, reason=reasons,
-                         dark=list(dark))
+                         dark=list(dark), geometry=geo)
 
 
 def _ha_pieces(geo: _Geometry, i: int, h0: float, east: float, west: float,

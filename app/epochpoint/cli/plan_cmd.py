@@ -1,0 +1,128 @@
+"""`epochpoint plan`: the night's boundaries, each target's windows and an observing order."""
+from __future__ import annotations
+
+import json
+import sys
+
+import numpy as np
+
+from ..core.plan import DARKNESS_LEVELS, plan
+from . import common
+from .people import PeopleColumn, people_table
+
+FORMATS = ["table", "json", "csv"]
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser("plan", help="when each target is observable tonight, and in what order",
+                       description="Plan the local night starting on DATE at the site: sunset, "
+                                   "twilights and sunrise, the Moon, each target's windows "
+                                   "(altitude, horizon mask, Moon, mount limits, Sun avoidance) "
+                                   "and an observing order that favours high priorities.")
+    common.add_targets_argument(p)
+    common.add_site_arguments(p)
+    p.add_argument("--night", required=True, metavar="YYYY-MM-DD",
+                   help="local date of the evening the night starts")
+    p.add_argument("--min-altitude", type=float, metavar="DEG",
+                   help="lowest observed altitude (default: the mount's minimum altitude)")
+    p.add_argument("--max-airmass", type=float, metavar="X", help="highest airmass allowed")
+    p.add_argument("--darkness", choices=DARKNESS_LEVELS, default="astronomical",
+                   help="how dark the sky must be (default astronomical: Sun below -18 deg)")
+    p.add_argument("--moon-separation", type=float, default=0.0, metavar="DEG",
+                   help="smallest distance from the Moon while it is up (default 0: none)")
+    p.add_argument("--moon-scaled", action="store_true",
+                   help="scale the Moon distance with the Moon's illuminated fraction")
+    common.add_output_arguments(p, FORMATS)
+    p.add_argument("--chart", metavar="FILE.png",
+                   help="also draw observed altitude against time to a PNG file")
+    p.add_argument("--chart-targets", type=int, default=12, metavar="N",
+                   help="how many targets the chart shows (highest priority first)")
+
+
+def run(args) -> int:
+    targets = common.load_targets(args)
+    site = common.load_site(args)
+    result = plan(targets, site, args.night, darkness=args.darkness,
+                  min_altitude=args.min_altitude, max_airmass=args.max_airmass,
+                  moon_separation=args.moon_separation, moon_scale=args.moon_scaled)
+    if args.chart:
+        from ..charts import save_night_chart
+        save_night_chart(result, args.chart, top_n=args.chart_targets)
+    data = result.to_json()
+    if args.format == "json":
+        _write(args, json.dumps(data, indent=1) + "\n")
+    elif args.format == "csv":
+        _write(args, _schedule_csv(result, data))
+    else:
+        _write(args, _people(result, data))
+    return 0
+
+
+def _write(args, text: str) -> None:
+    if args.output:
+        from ..io import atomic_write_text
+        atomic_write_text(args.output, text)
+    else:
+        sys.stdout.write(text)
+
+
+def _local(result, iso: str | None) -> str:
+    """'HH:MM local (HH:MM UTC)' for an ISO instant, or 'none'."""
+    if iso is None:
+        return "none"
+    local = common.local_time_text(iso, result.site.timezone)
+    return f"{local[11:16]} local ({iso[11:16]} UTC)"
+
+
+def _schedule_csv(result, data) -> str:
+    """The observing order as CSV rows (one per block), then the targets left out."""
+    from ..io import write_result
+
+    columns = {"name": np.array([e["name"] for e in data["schedule"]], dtype=object),
+               "start": np.array([e["start"] for e in data["schedule"]], dtype=object),
+               "end": np.array([e["end"] for e in data["schedule"]], dtype=object),
+               "slew_s": np.array([e["slew_s"] for e in data["schedule"]], dtype=float)}
+    meta = {"site": data["site"], "night": data["date"], "darkness": data["darkness"]}
+    meta.update({k: v for k, v in data["night"].items()})
+    meta["unscheduled"] = "; ".join(f"{u['name']} ({u['reason']})" for u in data["unscheduled"])
+    return write_result(columns, meta, None, "csv")
+
+
+def _people(result, data) -> str:
+    """The plan for reading before dusk: the night, the Moon, windows, then the order."""
+    night, moon = data["night"], data["moon"]
+    lines = [f"Night of {data['date']} at {data['site']} ({data['darkness']} darkness)", ""]
+    for key in night:
+        lines.append(f"  {key.replace('_', ' '):<28} {_local(result, night[key])}")
+    lit = moon.get("illumination")
+    lines += ["", f"  Moon: {100 * lit:.0f}% lit, {'waxing' if moon.get('waxing') else 'waning'}"
+              f"; rises {_local(result, moon.get('moonrise'))}, "
+              f"sets {_local(result, moon.get('moonset'))}", ""]
+    w = result.windows
+    window_text = np.array(["; ".join(f"{_local(result, result.iso(s))[:5]}-"
+                                      f"{_local(result, result.iso(e))[:5]}" for s, e in win)
+                            for win in w.windows], dtype=object)
+    table = {"name": w.names, "priority": result.priority,
+             "transit": np.array([_local(result, t["transit"]) for t in data["targets"]],
+                                 dtype=object),
+             "max_altitude": w.max_altitude, "windows": window_text,
+             "reason": np.array([r or "" for r in w.reason], dtype=object)}
+    columns = [PeopleColumn("Name", "name", str), PeopleColumn("Pri", "priority", "{:.0f}"),
+               PeopleColumn("Transit", "transit", str),
+               PeopleColumn("Max alt", "max_altitude", "{:6.1f}"),
+               PeopleColumn("Windows (local)", "windows", str),
+               PeopleColumn("Not observable because", "reason", str)]
+    text = people_table(table, columns, lines + ["Targets:"])
+    order = {"start": np.array([_local(result, e["start"]) for e in data["schedule"]], dtype=object),
+             "end": np.array([_local(result, e["end"]) for e in data["schedule"]], dtype=object),
+             "name": np.array([e["name"] for e in data["schedule"]], dtype=object),
+             "slew": np.array([e["slew_s"] for e in data["schedule"]], dtype=float)}
+    text += "\n" + people_table(order, [PeopleColumn("Start", "start", str),
+                                        PeopleColumn("End", "end", str),
+                                        PeopleColumn("Target", "name", str),
+                                        PeopleColumn("Slew s", "slew", "{:5.0f}")],
+                                [f"Observing order ({len(data['schedule'])} blocks):"])
+    if data["unscheduled"]:
+        text += "\nNot scheduled:\n" + "".join(f"  {u['name']}: {u['reason']}\n"
+                                              for u in data["unscheduled"])
+    return text

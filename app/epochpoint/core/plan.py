@@ -1,0 +1,136 @@
+"""The night plan: boundaries of the night, the Moon, each target's windows, and an order.
+
+plan() strings together night.py (sunset, twilights), sky_track.py (Sun and Moon over the
+night), windows.py (when each target may be observed) and schedule.py (which blocks, in
+which order). Per-target planning fields come from the target list's extra columns:
+`priority` (1 highest .. 5 lowest, default 3), `exposure` (seconds, default 300) and
+`repeats` (default 1); a block is exposure x repeats observed without a break.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from astropy.time import Time
+
+from .night import NightBoundaries, moon_events, night_boundaries
+from .schedule import Schedule, schedule
+from .schedule_model import priority_weight
+from .schedule_slew import Mount
+from .site import Site
+from .sky_track import SkyTrack, build_sky_track
+from .targets import Targets, TargetError
+from .timescale import iso_z
+from .windows import Constraints, TargetWindows, observable_windows
+
+DEFAULT_PRIORITY = 3
+DEFAULT_EXPOSURE_S = 300.0
+DEFAULT_REPEATS = 1
+DARKNESS_LEVELS = ("civil", "nautical", "astronomical")
+
+
+@dataclass(frozen=True, eq=False)
+class Plan:
+    """Everything computed for one night at one site (times in seconds from `t_ref`)."""
+
+    site: Site
+    night: NightBoundaries
+    moon: dict
+    constraints: Constraints
+    sky: SkyTrack
+    windows: TargetWindows
+    schedule: Schedule
+    priority: np.ndarray
+    duration_s: np.ndarray
+
+    @property
+    def t_ref(self) -> Time:
+        return self.sky.t_ref
+
+    def iso(self, seconds) -> str | None:
+        """ISO 8601 UTC (Z) of an instant in seconds from t_ref; None for NaN."""
+        if seconds is None or not np.isfinite(seconds):
+            return None
+        return iso_z(self.sky.time_at(float(seconds)))
+
+    def to_json(self) -> dict:
+        """The plan as documented for `epochpoint plan --format json`."""
+        w = self.windows
+        targets = []
+        for i, name in enumerate(w.names):
+            targets.append({
+                "name": str(name),
+                "transit": self.iso(w.transit[i]),
+                "max_altitude": _rounded(w.max_altitude[i], 4),
+                "windows": [[self.iso(s), self.iso(e)] for s, e in w.windows[i]],
+                "reason": w.reason[i] or None,
+                "priority": int(self.priority[i]),
+                "duration_s": float(self.duration_s[i]),
+            })
+        entries = [{"name": str(w.names[i]), "start": self.iso(s), "end": self.iso(e),
+                    "slew_s": round(float(slew), 1)}
+                   for i, s, e, slew in zip(self.schedule.index, self.schedule.start_s,
+                                            self.schedule.end_s, self.schedule.slew_s)]
+        unscheduled = [{"name": str(w.names[u.index]), "reason": w.reason[u.index] or u.reason}
+                       for u in self.schedule.unscheduled]
+        return {"site": self.site.name or f"{self.site.latitude},{self.site.longitude}",
+                "date": self.night.date.isoformat(), "darkness": self.constraints.darkness,
+                "night": self.night.to_json(), "moon": self.moon, "targets": targets,
+                "schedule": entries, "unscheduled": unscheduled}
+
+
+def _rounded(value, digits):
+    return None if not np.isfinite(value) else round(float(value), digits)
+
+
+def _extra_column(targets: Targets, name: str, default: float, minimum: float) -> np.ndarray:
+    """A numeric planning column from the target list's extras, with its default."""
+    n = len(targets)
+    if name not in targets.extra:
+        return np.full(n, default, dtype=float)
+    out = np.empty(n)
+    for i, value in enumerate(targets.extra[name]):
+        text = "" if value is None else str(value).strip()
+        try:
+            out[i] = default if text in ("", "nan", "--") else float(text)
+        except ValueError:
+            raise TargetError(name, i, f"{text!r} is not a number") from None
+        if not np.isfinite(out[i]) or out[i] < minimum:
+            raise TargetError(name, i, f"{text!r} must be a number >= {minimum:g}")
+    return out
+
+
+def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
+         min_altitude: float | None = None, max_airmass: float | None = None,
+         moon_separation: float = 0.0, moon_scale: bool = False,
+         max_seconds: float = 1.0) -> Plan:
+    """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
+
+    Altitudes are observed (refracted) altitudes with the site's weather; pressure 0 turns
+    refraction off. The mount limits, horizon mask and Sun avoidance of the site always apply.
+    """
+    if darkness not in DARKNESS_LEVELS:
+        raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "
+                         f"got {darkness!r}")
+    constraints = Constraints(darkness=darkness, min_altitude=min_altitude,
+                              max_airmass=max_airmass, moon_separation=moon_separation,
+                              moon_scale=moon_scale)
+    priority = _extra_column(targets, "priority", DEFAULT_PRIORITY, 1.0)
+    duration = (_extra_column(targets, "exposure", DEFAULT_EXPOSURE_S, 0.0)
+                * _extra_column(targets, "repeats", DEFAULT_REPEATS, 1.0))
+    boundaries = night_boundaries(site, night)
+    t_ref = boundaries.window_start
+    length_s = float((boundaries.window_end - t_ref).to_value("s"))
+    sky = build_sky_track(site, t_ref, length_s)
+    span = boundaries.spans.get(darkness)
+    dark = [] if span is None else [(float((span[0] - t_ref).to_value("s")),
+                                     float((span[1] - t_ref).to_value("s")))]
+    windows = observable_windows(targets, site, sky, dark, constraints)
+    mount = site.interlocks.mount
+    order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.windows,
+                     length_s, ra_deg=windows.ra, dec_deg=windows.dec,
+                     mount=Mount(settle_s=mount.settle, slew_rate_deg_s=mount.slew_rate),
+                     max_seconds=max_seconds)
+    return Plan(site=site, night=boundaries, moon=moon_events(site, boundaries),
+                constraints=constraints, sky=sky, windows=windows, schedule=order,
+                priority=priority, duration_s=duration)
