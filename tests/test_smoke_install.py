@@ -55,13 +55,15 @@ def test_demo_file_starts_with_its_demo_data_notice(path, first_line):
 
 def test_demo_site_file_follows_the_site_schema():
     site = tomllib.loads(SITE_FILE.read_text(encoding="utf-8"))
-    assert set(site) == {"site", "weather"}
+    assert set(site) == {"site", "weather", "horizon", "mount", "safety"}
     assert set(site["site"]) == {"name", "latitude", "longitude", "height", "timezone"}
     assert set(site["weather"]) == {"pressure", "temperature", "humidity", "wavelength"}
     assert -90.0 <= site["site"]["latitude"] <= 90.0
     assert -180.0 <= site["site"]["longitude"] <= 180.0
     zoneinfo.ZoneInfo(site["site"]["timezone"])  # raises if not an IANA zone in tzdata
     assert 0.0 <= site["weather"]["humidity"] <= 1.0
+    # The demo keeps the interlocks on: a minimum altitude and Sun avoidance.
+    assert site["mount"]["min_altitude"] > 0.0 and site["safety"]["sun_avoidance"] >= 30.0
 
 
 def test_demo_target_file_has_thirty_complete_rows():

@@ -47,6 +47,12 @@ class HorizonMask:
         object.__setattr__(self, "azimuth", az)
         object.__setattr__(self, "altitude", alt)
 
+    def __eq__(self, other):
+        return (isinstance(other, HorizonMask) and np.array_equal(self.azimuth, other.azimuth)
+                and np.array_equal(self.altitude, other.altitude))
+
+    __hash__ = None
+
     def min_altitude(self, az_deg) -> np.ndarray:
         """The mask's altitude (deg) at azimuths (deg), periodic linear interpolation."""
         return np.interp(np.mod(az_deg, 360.0), self.azimuth, self.altitude, period=360.0)

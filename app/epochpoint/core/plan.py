@@ -127,7 +127,7 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
                                      float((span[1] - t_ref).to_value("s")))]
     windows = observable_windows(targets, site, sky, dark, constraints)
     mount = site.interlocks.mount
-    order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.windows,
+    order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.blocks,
                      length_s, ra_deg=windows.ra, dec_deg=windows.dec,
                      mount=Mount(settle_s=mount.settle, slew_rate_deg_s=mount.slew_rate),
                      max_seconds=max_seconds)

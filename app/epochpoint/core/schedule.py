@@ -31,7 +31,7 @@ from .schedule_model import (DISPLACED, NO_WINDOW, NO_WINDOW_LONG_ENOUGH, Entry,
 from .schedule_search import evaluate, improve, recreate
 from .schedule_slew import Mount, slew_table_s
 
-__all__ = ["schedule", "greedy_schedule", "priority_weight", "Mount", "slew_table_s",
+__all__ = ["schedule", "schedule_all", "candidate_pool", "greedy_schedule", "priority_weight", "Mount", "slew_table_s",
            "Schedule", "Entry", "Unscheduled", "ScheduleInputError", "NO_WINDOW",
            "NO_WINDOW_LONG_ENOUGH", "DISPLACED"]
 
@@ -62,9 +62,76 @@ def greedy_schedule(weight, duration_s, windows_s, night_end_s, slew_s=None, *, 
     return make_schedule(problem, route, starts, 0, time.perf_counter() - started)
 
 
+# Long lists are cut to this many candidates per block the night can hold (at least
+# MIN_CANDIDATES): a night holds ~100 blocks, and the slew table grows as the square.
+CANDIDATES_PER_BLOCK = 4
+MIN_CANDIDATES = 400
+
+
+def candidate_pool(weight, duration_s, windows_s) -> np.ndarray | None:
+    """For long lists, the indices worth offering to the search: the targets whose block fits
+    a window, with the highest weights (then the least flexible windows), up to four times
+    the number of blocks the night can hold. None when no cut is needed."""
+    weight = np.asarray(weight, dtype=float)
+    duration = np.asarray(duration_s, dtype=float)
+    usable = np.array([sum(max(0.0, e - s) for s, e in w) for w in windows_s])
+    fits = np.array([any(e - s >= d for s, e in w) for w, d in zip(windows_s, duration)],
+                    dtype=bool)
+    spans = [(s, e) for w in windows_s for s, e in w]
+    night = (max(e for _, e in spans) - min(s for s, _ in spans)) if spans else 0.0
+    fitting = np.flatnonzero(fits)
+    if fitting.size <= MIN_CANDIDATES:
+        return None
+    capacity = night / max(float(np.median(duration[fitting])), 1.0)
+    limit = max(MIN_CANDIDATES, int(CANDIDATES_PER_BLOCK * capacity))
+    if fitting.size <= limit:
+        return None
+    order = np.lexsort((usable[fitting], -weight[fitting]))
+    return np.sort(fitting[order[:limit]])
+
+
 def schedule(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_deg=None,
              dec_deg=None, mount=None, max_seconds=1.0, seed=0, max_iterations=None,
              patience=None) -> Schedule:
+    """The best order found within `max_seconds` (see `schedule_all`).
+
+    With positions and a mount, long lists are first cut to `candidate_pool` (a night holds
+    about a hundred blocks); targets left out that fit a window are reported as displaced.
+    """
+    if ra_deg is None or slew_s is not None:
+        return schedule_all(weight, duration_s, windows_s, night_end_s, slew_s, ra_deg=ra_deg,
+                            dec_deg=dec_deg, mount=mount, max_seconds=max_seconds, seed=seed,
+                            max_iterations=max_iterations, patience=patience)
+    n = np.asarray(weight).size
+    pool = candidate_pool(weight, duration_s, windows_s)
+    if pool is None:
+        return schedule_all(weight, duration_s, windows_s, night_end_s, ra_deg=ra_deg,
+                            dec_deg=dec_deg, mount=mount, max_seconds=max_seconds, seed=seed,
+                            max_iterations=max_iterations, patience=patience)
+    pick = lambda column: np.asarray(column)[pool]  # noqa: E731
+    sub = schedule_all(pick(weight), pick(duration_s), [windows_s[i] for i in pool],
+                       night_end_s, ra_deg=pick(ra_deg), dec_deg=pick(dec_deg), mount=mount,
+                       max_seconds=max_seconds, seed=seed, max_iterations=max_iterations,
+                       patience=patience)
+    chosen = set(pool[sub.index].tolist())
+    duration = np.asarray(duration_s, dtype=float)
+    unscheduled = tuple(Unscheduled(i, _alone_reason(windows_s[i], duration[i]))
+                        for i in range(n) if i not in chosen)
+    return Schedule(pool[sub.index], sub.start_s, sub.end_s, sub.slew_s, unscheduled,
+                    sub.total_weight, sub.iterations, sub.elapsed_s)
+
+
+def _alone_reason(windows, duration: float) -> str:
+    if not windows:
+        return NO_WINDOW
+    if not any(e - s >= duration for s, e in windows):
+        return NO_WINDOW_LONG_ENOUGH
+    return DISPLACED
+
+
+def schedule_all(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_deg=None,
+                 dec_deg=None, mount=None, max_seconds=1.0, seed=0, max_iterations=None,
+                 patience=None) -> Schedule:
     """The best order found within `max_seconds` (wall time of the whole call).
 
     Starts from the better of the greedy baseline and two insertion passes (score weight /

@@ -56,11 +56,14 @@ class Constraints:
 
 @dataclass
 class TargetWindows:
-    """Per target: windows (list of (start, end) seconds), transit (s), the highest observed
-    altitude in the dark (deg), apparent ra/dec of date (deg) and the reason when no window."""
+    """Per target: windows (list of (start, end) seconds, every constraint met), transit (s),
+    the highest observed altitude in the dark (deg), apparent ra/dec of date (deg) and the
+    reason when there is no window. `blocks` are the windows an observation must fit in one
+    piece: for a German mount the windows are cut where it must flip (see _ha_pieces)."""
 
     names: np.ndarray
     windows: list
+    blocks: list
     transit: np.ndarray
     max_altitude: np.ndarray
     ra: np.ndarray
@@ -115,7 +118,7 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
                                geo.dec, geo.lat)
     transit, max_alt = _transit_and_peak(geo, span)
     dec_ok = (geo.dec >= mount.dec_min) & (geo.dec <= mount.dec_max)
-    checks = _SampledChecks(geo, site, constraints)
+    checks = _SampledChecks(geo, site, constraints, span)
 
     windows, reasons = [], np.full(n, "", dtype=object)
     for i in range(n):
@@ -141,7 +144,8 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
             continue
         pieces, reasons[i] = checks.apply(i, pieces)
         windows.append(pieces)
-    return TargetWindows(names=targets.names(), windows=windows, transit=transit,
+    return TargetWindows(names=targets.names(), windows=[iv.union(w) for w in windows],
+                         blocks=windows, transit=transit,
                          max_altitude=max_alt, ra=geo.ra, dec=geo.dec, reason=reasons,
                          dark=list(dark), geometry=geo)
 
@@ -200,11 +204,34 @@ def _transit_and_peak(geo: _Geometry, span: list):
 class _SampledChecks:
     """The horizon mask, Sun avoidance and Moon separation, sampled and refined."""
 
-    def __init__(self, geo: _Geometry, site: Site, constraints: Constraints):
+    def __init__(self, geo: _Geometry, site: Site, constraints: Constraints, span: list):
         self.geo, self.site, self.c = geo, site, constraints
         self.mask = site.interlocks.horizon
         self.sun_radius = site.interlocks.sun_avoidance
         self.moon_on = constraints.moon_separation > 0.0
+        self.needed = self._screen(span, constraints.altitude_limit(site))
+
+    def _screen(self, span: list, limit: float) -> dict:
+        """Which targets each sampled check can possibly cut, from a coarse all-target pass.
+
+        The Sun moves under 0.5 deg in a night and the Moon about 0.55 deg an hour, so a
+        target farther than the limit plus that motion from the coarse samples is never cut.
+        """
+        geo, n = self.geo, self.geo.ra.shape[0]
+        t = np.linspace(span[0][0], span[-1][1], 25)
+        target = _unit(geo.ra, geo.dec)
+        needed = {"mask": np.full(n, self.mask is not None and
+                                  float(self.mask.altitude.max()) > limit)}
+        sun_sep = np.min([geo.sky.separation_from("sun", target, np.full(n, ti)) for ti in t],
+                         axis=0)
+        needed["sun"] = sun_sep < self.sun_radius + 1.0
+        if self.moon_on:
+            moon_sep = np.min([geo.sky.separation_from("moon", target, np.full(n, ti))
+                               for ti in t], axis=0)
+            needed["moon"] = moon_sep < self.c.moon_separation + 1.0
+        else:
+            needed["moon"] = np.zeros(n, dtype=bool)
+        return needed
 
     def _ok(self, which: str, idx, t):
         geo = self.geo
@@ -224,9 +251,7 @@ class _SampledChecks:
         """Pieces cut by each sampled check in turn; the reason if nothing is left."""
         for which, reason in (("mask", "behind the horizon mask"),
                               ("sun", "too near the Sun"), ("moon", "too near the Moon")):
-            if which == "mask" and self.mask is None or which == "moon" and not self.moon_on:
-                continue
-            if which == "sun" and self.sun_radius <= 0.0:
+            if not self.needed[which][i]:
                 continue
             pieces = [part for piece in pieces for part in self._cut(which, i, piece)]
             if not pieces:

@@ -15,7 +15,8 @@ Site file schema (Epochpoint's own; TOML 1.0, read with tomllib)::
     humidity = 0.25         # relative, 0..1 (default 0.5)
     wavelength = 0.55       # micrometres (default 0.55)
 
-    [horizon]  [mount]  [safety]   # reserved for later use: accepted, returned, not yet read
+    [horizon]  [mount]  [safety]   # the interlocks: horizon mask, mount limits, Sun
+                                   # avoidance (see sitelimits.py for their keys)
 
 Any other table, or any other key in [site] or [weather], is an error naming file, table and
 key, so a misspelt key never passes silently. Values outside their physical range are refused
@@ -35,6 +36,7 @@ from epochpoint.core.site import Site, SiteError
 
 from .errors import InputError, quote
 from .filebytes import decode_utf8, read_file_bytes
+from .sitelimits import read_interlocks
 
 SITE_KEYS = ("name", "latitude", "longitude", "height", "timezone")
 WEATHER_KEYS = ("pressure", "temperature", "humidity", "wavelength")
@@ -97,7 +99,7 @@ def _load_toml(path: str) -> dict:
 
 
 def read_site_file(path) -> tuple[Site, dict]:
-    """(Site, {reserved table name: its contents}) from a TOML site file (schema above)."""
+    """(Site, {interlock table name: its raw contents}) from a TOML site file (schema above)."""
     path = os.fspath(path)
     document = _load_toml(path)
     for name, table in document.items():
@@ -118,8 +120,10 @@ def read_site_file(path) -> tuple[Site, dict]:
     values.update({key: _value(path, "weather", key, v) for key, v in weather_table.items()})
     if "timezone" in values:
         _check_timezone(path, values["timezone"])
+    reserved = {name: document[name] for name in RESERVED_TABLES if name in document}
+    values["interlocks"] = read_interlocks(path, reserved)
     site = _make_site(path, None, values)
-    return site, {name: document[name] for name in RESERVED_TABLES if name in document}
+    return site, reserved
 
 
 def _make_site(path, label, values: dict) -> Site:
