@@ -10,10 +10,15 @@ The public Python API (a contract: scripts depend on these names)::
                    humidity=..., wavelength=...)
     res = ep.positions(t, site, "2027-01-20T23:10:00Z")
     res["alt"]
+    night = ep.plan(t, site, "2027-01-19", min_altitude=20.0, moon_separation=30.0)
+    night.to_json()   # the same data as `epochpoint plan --format json`
 """
 from .core import (Positions, Site, SiteError, StaleEarthOrientation, TargetError, Targets,
                    TimeInputError, earth_orientation_status, make_context, positions)
 from .core.drift import drift
+from .core.limits import HorizonMask, Interlocks, MountLimits
+from .core.night import night_boundaries
+from .core.plan import Plan, plan
 
 __version__ = "0.1.0"
 
@@ -32,6 +37,7 @@ def write_targets(targets, path, format=None):
     return _write(targets, path, format=format)
 
 
-__all__ = ["Positions", "Site", "SiteError", "StaleEarthOrientation", "TargetError", "Targets",
+__all__ = ["HorizonMask", "Interlocks", "MountLimits", "Plan", "night_boundaries", "plan",
+           "Positions", "Site", "SiteError", "StaleEarthOrientation", "TargetError", "Targets",
            "TimeInputError", "drift", "earth_orientation_status", "make_context", "positions",
            "read_targets", "write_targets", "__version__"]

@@ -8,7 +8,7 @@ which order). Per-target planning fields come from the target list's extra colum
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from astropy.time import Time
@@ -100,6 +100,29 @@ def _extra_column(targets: Targets, name: str, default: float, minimum: float) -
     return out
 
 
+def centre_on_transit(order: Schedule, blocks: list, transit_s: np.ndarray) -> Schedule:
+    """The same blocks in the same order, each moved later (never earlier) towards the time
+    that centres it on its target's transit, where the slack before the next block allows.
+
+    The scheduler starts every block as early as possible; observers prefer the lowest
+    airmass, which is at transit. A backward pass keeps every block inside the window piece
+    it started in and keeps each slew's gap, so the schedule stays valid.
+    """
+    start = np.array(order.start_s, dtype=float)
+    duration = np.asarray(order.end_s, dtype=float) - start
+    next_start = np.inf
+    for k in range(start.size - 1, -1, -1):
+        i = int(order.index[k])
+        piece_end = min((e for s_, e in blocks[i] if s_ <= start[k] + 1e-6 <= e + 1e-6),
+                        default=start[k] + duration[k])
+        latest = min(piece_end - duration[k], next_start - duration[k])
+        desired = transit_s[i] - 0.5 * duration[k]
+        start[k] = min(max(desired, start[k]), max(latest, start[k]))
+        if k > 0:
+            next_start = start[k] - order.slew_s[k]
+    return replace(order, start_s=start, end_s=start + duration)
+
+
 def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          min_altitude: float | None = None, max_airmass: float | None = None,
          moon_separation: float = 0.0, moon_scale: bool = False,
@@ -131,6 +154,7 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
                      length_s, ra_deg=windows.ra, dec_deg=windows.dec,
                      mount=Mount(settle_s=mount.settle, slew_rate_deg_s=mount.slew_rate),
                      max_seconds=max_seconds)
+    order = centre_on_transit(order, windows.blocks, windows.transit)
     return Plan(site=site, night=boundaries, moon=moon_events(site, boundaries),
                 constraints=constraints, sky=sky, windows=windows, schedule=order,
                 priority=priority, duration_s=duration)

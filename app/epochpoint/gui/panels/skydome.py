@@ -1,0 +1,24 @@
+"""The Sky dome tab (skeleton; being built out)."""
+from __future__ import annotations
+
+from PySide6.QtCore import Signal
+from PySide6.QtWidgets import QWidget
+
+
+class SkyDomePanel(QWidget):
+    target_clicked = Signal(int)
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.plan = None
+        self.selected = None
+        self.t_seconds = None
+
+    def set_plan(self, plan) -> None:
+        self.plan = plan
+
+    def set_time(self, seconds) -> None:
+        self.t_seconds = seconds
+
+    def set_selected(self, index) -> None:
+        self.selected = index
