@@ -23,11 +23,13 @@ import plan_reference as ref
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
 
-# Brief: 30 s. Measured worst: see test docstrings.
-EDGE_TOLERANCE_S = 30.0
-DARK_TOLERANCE_S = 30.0
-PEAK_TOLERANCE_DEG = 0.01
-TRANSIT_TOLERANCE_S = 30.0
+# The brief asks for 30 s, 0.01 deg and 30 s; measured worst (2024 nights below): altitude
+# edges 0.15 s, darkness edges 0.05 s, peaks 0.0002 deg, transits 0.13 s. The bounds keep a
+# wide margin over the measurements and still catch a drift far below the brief's.
+EDGE_TOLERANCE_S = 5.0
+DARK_TOLERANCE_S = 5.0
+PEAK_TOLERANCE_DEG = 0.002
+TRANSIT_TOLERANCE_S = 5.0
 # Targets whose astropy peak in the dark is this close to the limit graze it: a window of a
 # few seconds may appear on one side only, so they are left out of the edge comparison.
 GRAZE_DEG = 0.02
@@ -92,7 +94,7 @@ def _astropy_windows(compared, i):
 def test_window_edges_match_astropy_altitude_crossings(compared):
     # Reference: the 25 s astropy AltAz grid through astropy's darkness, crossings of the
     # limit interpolated; edges clipped by darkness are astropy's Sun crossings of -18 deg.
-    # Measured worst: about 1 s (refracted and pressure 0 alike).
+    # Measured worst: 0.15 s (refracted and pressure 0 alike).
     p, limit = compared["plan"], compared["limit"]
     dark_edges = np.array(compared["dark"])
     altitude_edges, worst = 0, {"altitude": 0.0, "darkness": 0.0}
@@ -124,7 +126,7 @@ def test_max_altitude_matches_astropy_grid_maximum(compared):
     # Reference: astropy's highest altitude in its darkness: the 25 s grid maximum refined on
     # a 1 s astropy grid around it (the 25 s grid alone can miss a near-zenith peak by more
     # than 0.01 deg). Targets whose peak is below 15 deg are left out (refraction models part
-    # there). Measured worst: about 0.0005 deg.
+    # there). Measured worst: 0.0002 deg.
     p, t_s = compared["plan"], compared["t_s"]
     alt = compared["alt"]
     j = np.argmax(alt, axis=1)
@@ -140,13 +142,14 @@ def test_max_altitude_matches_astropy_grid_maximum(compared):
 
 def test_transit_matches_astropy_hour_angle_zero(compared):
     # Reference: astropy HADec (topocentric hour angle, pressure 0) crossing 0 upward, on a
-    # 10 s grid of +-15 min around our transit. Measured worst: under 0.5 s.
+    # 20 s grid of +-10 min around our transit (the hour angle is linear in time, so the
+    # interpolation is exact to milliseconds). Measured worst: 0.13 s.
     p = compared["plan"]
-    t_s = p.windows.transit[:, None] + np.arange(-900.0, 901.0, 10.0)[None, :]
+    t_s = p.windows.transit[:, None] + np.arange(-600.0, 601.0, 20.0)[None, :]
     ha = ref.target_ha_deg(compared["site"], p, compared["coords"], t_s)
     worst = 0.0
     for i, transit in enumerate(p.windows.transit):
         ups = [t for t, rising in ref.crossings(t_s[i], ha[i], 0.0) if rising]
-        assert len(ups) == 1, f"target {i}: astropy hour angle does not pass 0 within 15 min"
+        assert len(ups) == 1, f"target {i}: astropy hour angle does not pass 0 within 10 min"
         worst = max(worst, abs(ups[0] - transit))
     assert worst <= TRANSIT_TOLERANCE_S, f"worst {worst:.2f} s"
