@@ -9,13 +9,14 @@ STAMP  := $(VENV)/.epochpoint-installed
 
 DEMO_TARGETS := sample_targets/loma_candil_targets.csv
 DEMO_SITE    := sample_targets/loma_candil.toml
+DEMO_PLAN    := sample_targets/loma_candil_plan.json
 
 # Extra pytest arguments, e.g. `make test PYTEST_ARGS="-k refraction -x"`.
 PYTEST_ARGS ?=
 
 export PIP_DISABLE_PIP_VERSION_CHECK := 1
 
-.PHONY: install test run bench clean distclean
+.PHONY: install test run package bench clean distclean
 
 $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
@@ -38,10 +39,21 @@ test: $(STAMP)
 	fi; \
 	exit $$rc
 
-# Until the desktop app exists, `make run` shows the command-line demo on the invented
-# observatory's target list for the present moment.
-run: $(STAMP)
-	$(BIN)/epochpoint positions $(DEMO_TARGETS) --site $(DEMO_SITE) --at now --format table
+# The desktop app on the invented observatory's demo plan (night of 2027-01-19).
+run: $(STAMP) $(DEMO_PLAN)
+	$(BIN)/epochpoint gui $(DEMO_PLAN)
+
+# The demo plan file is built from the demo site and target list (invented demo data).
+$(DEMO_PLAN): $(DEMO_TARGETS) $(DEMO_SITE) sample_targets/build_demo_plan.py | $(STAMP)
+	$(BIN)/python sample_targets/build_demo_plan.py $@
+
+# A one-folder desktop bundle in dist/epochpoint/ (PyInstaller, installed into .venv), then
+# the bundle's smoke test. Slow (minutes); not part of `make test`.
+package: $(STAMP)
+	$(BIN)/python -m pip install 'pyinstaller>=6.0'
+	$(BIN)/pyinstaller --noconfirm --clean --distpath dist --workpath build/pyinstaller \
+		packaging/epochpoint.spec
+	packaging/smoke_test.sh dist/epochpoint/epochpoint
 
 bench: $(STAMP)
 	@if [ -f benchmarks/run_all.py ]; then \

@@ -30,6 +30,13 @@ def read_targets(path, skip_bad_rows=False, on_skip=None):
     return _read(path, skip_bad_rows=skip_bad_rows, on_skip=on_skip)
 
 
+def read_site(spec):
+    """A Site from a TOML site file or a 'LAT,LON,HEIGHT' string (see epochpoint.io.read_site)."""
+    from .io import read_site as _read
+
+    return _read(spec)
+
+
 def write_targets(targets, path, format=None):
     """Write targets to CSV, ECSV or VOTable, atomically (see epochpoint.io.write_targets)."""
     from .io import write_targets as _write
@@ -40,4 +47,4 @@ def write_targets(targets, path, format=None):
 __all__ = ["HorizonMask", "Interlocks", "MountLimits", "Plan", "night_boundaries", "plan",
            "Positions", "Site", "SiteError", "StaleEarthOrientation", "TargetError", "Targets",
            "TimeInputError", "drift", "earth_orientation_status", "make_context", "positions",
-           "read_targets", "write_targets", "__version__"]
+           "read_site", "read_targets", "write_targets", "__version__"]

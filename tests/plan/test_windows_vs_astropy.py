@@ -4,10 +4,14 @@ Reference (tests only): astropy AltAz with the same pressure, temperature, humid
 wavelength as the site (ERFA refco/atioq refraction), sampled every 25 s through astropy's own
 astronomical darkness (get_body('sun') below -18 deg, pressure 0); astropy HADec for the hour
 angle. 40 random targets, three sites (south, north, near the equator), two nights, with and
-without refraction (pressure 0 on both sides). Altitude limits are 20 deg and above, where the
-engine's refraction is SOFA's A tan z + B tan^3 z (refraction.py), so both sides use one model.
-The brief asks for window edges within 30 s, peaks within 0.01 deg, transits within 30 s;
-measured agreement is recorded beside each tolerance.
+without refraction (pressure 0 on both sides). The targets are Gaia-epoch (2016.0) positions
+with proper motion and parallax, four of them moving 5-10"/yr (Barnard's star moves 10.4"/yr,
+from memory): astropy carries them to mid-darkness with SkyCoord.apply_space_motion, so a
+window computed from the catalogue place instead of the place of the night would be caught.
+Altitude limits are 20 deg and above, where the engine's refraction is SOFA's A tan z +
+B tan^3 z (refraction.py), so both sides use one model. The planning issue asks for window
+edges within 30 s, peaks within 0.01 deg, transits within 30 s; measured agreement is
+recorded beside each tolerance.
 """
 import zlib
 
@@ -23,13 +27,14 @@ import plan_reference as ref
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
 
-# The brief asks for 30 s, 0.01 deg and 30 s; measured worst (2024 nights below): altitude
+# The issue asks for 30 s, 0.01 deg and 30 s; measured worst (2024 nights below): altitude
 # edges 0.15 s, darkness edges 0.05 s, peaks 0.0002 deg, transits 0.13 s. The bounds keep a
-# wide margin over the measurements and still catch a drift far below the brief's.
-EDGE_TOLERANCE_S = 5.0
-DARK_TOLERANCE_S = 5.0
+# tenfold margin over the measurements and still fail if the fast movers were planned at
+# their catalogue place (their edges then move by 3.5-5 s).
+EDGE_TOLERANCE_S = 2.0
+DARK_TOLERANCE_S = 2.0
 PEAK_TOLERANCE_DEG = 0.002
-TRANSIT_TOLERANCE_S = 5.0
+TRANSIT_TOLERANCE_S = 2.0
 # Targets whose astropy peak in the dark is this close to the limit graze it: a window of a
 # few seconds may appear on one side only, so they are left out of the edge comparison.
 GRAZE_DEG = 0.02
@@ -45,14 +50,20 @@ SITES = {
 NIGHTS = ("2024-03-12", "2024-09-05")
 
 
-def random_targets(latitude: float, seed: int):
-    """RA uniform; declinations that rise and set through the limit at this latitude."""
+def random_targets(latitude: float, seed: int) -> dict:
+    """Targets.from_columns keywords: RA uniform, declinations that rise and set through the
+    limit at this latitude, epoch 2016.0, motions up to 10"/yr."""
     rng = np.random.default_rng(seed)
     ra = rng.uniform(0.0, 360.0, N_TARGETS)
     lo, hi = max(-88.0, latitude - 70.0), min(88.0, latitude + 70.0)
     dec = np.degrees(np.arcsin(rng.uniform(np.sin(np.radians(lo)), np.sin(np.radians(hi)),
                                            N_TARGETS)))
-    return ra, dec
+    pm_total = rng.uniform(0.0, 200.0, N_TARGETS)
+    pm_total[:4] = [5000.0, 7000.0, 8500.0, 10000.0]
+    angle = rng.uniform(0.0, 2.0 * np.pi, N_TARGETS)
+    return dict(ra=ra, dec=dec, pm_ra_cosdec=pm_total * np.cos(angle),
+                pm_dec=pm_total * np.sin(angle), parallax=rng.uniform(1.0, 300.0, N_TARGETS),
+                radial_velocity=rng.uniform(-100.0, 100.0, N_TARGETS), epoch=2016.0)
 
 
 CASES = [(name, night, refracted) for name in SITES for night in NIGHTS
@@ -67,14 +78,15 @@ def compared(request):
     site, limit = SITES[name]
     if not refracted:
         site = site.with_weather(pressure=0.0)
-    ra, dec = random_targets(site.latitude, seed=zlib.crc32(f"{name} {night}".encode()))
-    ours = plan(Targets.from_columns(ra=ra, dec=dec, epoch=2000.0), site, night,
-                min_altitude=limit, max_seconds=0.05)
+    columns = random_targets(site.latitude, seed=zlib.crc32(f"{name} {night}".encode()))
+    ours = plan(Targets.from_columns(**columns), site, night, min_altitude=limit,
+                max_seconds=0.05)
     (dark,) = ref.sun_below(site, ours, -18.0)
+    coords = ref.catalogue_place(columns, ours, 0.5 * (dark[0] + dark[1]))
     t_s = ref.grid_inside(*dark)
-    alt, _ = ref.target_altaz(site, ours, ref.icrs(ra, dec), t_s)
+    alt, _ = ref.target_altaz(site, ours, coords, t_s)
     return dict(site=site, limit=limit, plan=ours, dark=dark, t_s=t_s, alt=alt,
-                coords=ref.icrs(ra, dec))
+                coords=coords)
 
 
 def test_darkness_edges_match_astropy_sun(compared):
@@ -87,31 +99,59 @@ def test_darkness_edges_match_astropy_sun(compared):
     assert diff.max() <= DARK_TOLERANCE_S, f"darkness edges off by {diff} s"
 
 
-def _astropy_windows(compared, i):
-    return ref.runs_above(compared["t_s"], compared["alt"][i], compared["limit"])
+def _edge_differences(ours_per_target, theirs_per_target, dark) -> dict:
+    """Per kind of edge ('altitude' or 'darkness'), |ours - astropy's| for matching edges;
+    a target whose window count differs fails at once."""
+    found = {"altitude": [], "darkness": []}
+    for i, (ours, theirs) in enumerate(zip(ours_per_target, theirs_per_target)):
+        if theirs is None:  # grazing target, left out
+            continue
+        assert len(ours) == len(theirs), f"target {i}: ours {ours} vs astropy {theirs}"
+        for edge_ours, edge_theirs in zip(np.ravel(ours), np.ravel(theirs)):
+            kind = "darkness" if np.abs(np.subtract(dark, edge_theirs)).min() < 1e-6 else \
+                "altitude"
+            found[kind].append(abs(edge_ours - edge_theirs))
+    return {kind: np.array(diffs) for kind, diffs in found.items()}
 
 
 def test_window_edges_match_astropy_altitude_crossings(compared):
     # Reference: the 25 s astropy AltAz grid through astropy's darkness, crossings of the
     # limit interpolated; edges clipped by darkness are astropy's Sun crossings of -18 deg.
     # Measured worst: 0.15 s (refracted and pressure 0 alike).
-    p, limit = compared["plan"], compared["limit"]
-    dark_edges = np.array(compared["dark"])
-    altitude_edges, worst = 0, {"altitude": 0.0, "darkness": 0.0}
-    for i in range(len(p.windows.names)):
-        peak = compared["alt"][i].max()
-        if abs(peak - limit) < GRAZE_DEG:
-            continue
-        theirs, ours = _astropy_windows(compared, i), p.windows.windows[i]
-        assert len(ours) == len(theirs), (
-            f"target {i}: ours {ours} vs astropy {theirs} (peak {peak:.3f} deg)")
-        for edge_ours, edge_theirs in zip(np.ravel(ours), np.ravel(theirs)):
-            kind = "darkness" if np.abs(dark_edges - edge_theirs).min() < 1e-6 else "altitude"
-            altitude_edges += kind == "altitude"
-            worst[kind] = max(worst[kind], abs(edge_ours - edge_theirs))
-            assert abs(edge_ours - edge_theirs) <= EDGE_TOLERANCE_S, (
-                f"target {i} {kind} edge: ours {edge_ours:.1f} s, astropy {edge_theirs:.1f} s")
-    assert altitude_edges >= 15, "too few edges set by the altitude limit to test"
+    alt, limit = compared["alt"], compared["limit"]
+    theirs = [None if abs(row.max() - limit) < GRAZE_DEG
+              else ref.runs_above(compared["t_s"], row, limit) for row in alt]
+    diffs = _edge_differences(compared["plan"].windows.windows, theirs, compared["dark"])
+    assert diffs["altitude"].size >= 15, "too few edges set by the altitude limit to test"
+    for kind, diff in diffs.items():
+        assert diff.max(initial=0.0) <= EDGE_TOLERANCE_S, f"{kind} edges off by {diff.max()} s"
+
+
+def kasten_young_airmass(alt_deg):
+    """Kasten & Young (1989), Applied Optics 28, 4735: X = 1 / (sin h + 0.50572 (h + 6.07995)
+    ^-1.6364), h the observed altitude in degrees (coefficients as published)."""
+    h = np.maximum(alt_deg, 0.0)
+    return 1.0 / (np.sin(np.radians(h)) + 0.50572 * (h + 6.07995) ** -1.6364)
+
+
+def test_max_airmass_edges_match_kasten_young_on_astropy_altitudes():
+    # Reference: astropy's refracted altitudes turned into airmass by the published formula;
+    # windows are where that airmass is at most 1.5 (about 41.8 deg). Measured worst: 0.15 s.
+    site, _ = SITES["south"]
+    columns = random_targets(site.latitude, seed=15)
+    ours = plan(Targets.from_columns(**columns), site, NIGHTS[0], max_airmass=1.5,
+                max_seconds=0.05)
+    (dark,) = ref.sun_below(site, ours, -18.0)
+    t_s = ref.grid_inside(*dark)
+    coords = ref.catalogue_place(columns, ours, 0.5 * (dark[0] + dark[1]))
+    alt, _ = ref.target_altaz(site, ours, coords, t_s)
+    airmass = kasten_young_airmass(alt)
+    theirs = [None if abs(row.min() - 1.5) < 1e-3 else ref.runs_above(t_s, -row, -1.5)
+              for row in airmass]
+    diffs = _edge_differences(ours.windows.windows, theirs, dark)
+    assert diffs["altitude"].size >= 15
+    for kind, diff in diffs.items():
+        assert diff.max(initial=0.0) <= EDGE_TOLERANCE_S, f"{kind} edges off by {diff.max()} s"
 
 
 def test_unobservable_targets_never_reach_the_limit_in_astropy(compared):

@@ -19,6 +19,7 @@ LIGHT = {
     "background": "#ffffff",
     "foreground": "#000000",
     "grid": "#ffffff",
+    "rings": "#c8d0da",  # grid lines drawn on the plain background (sky map, plots)
     "accent": "#1f5fa8",
     # Sun below the horizon, civil, nautical, astronomical darkness (lightest to darkest).
     "shades": ("#e9eef4", "#d6dfe9", "#c2cfdd", "#aebfd1"),
@@ -42,6 +43,11 @@ def _luminance(colour) -> float:
     return 0.2126 * r + 0.7152 * g + 0.0722 * b
 
 
+def is_dark(style: dict) -> bool:
+    """True when a (resolved) style draws on a dark background."""
+    return _luminance(style["background"]) < DARK_BACKGROUND_LUMINANCE
+
+
 def mix(colour_a, colour_b, fraction: float) -> str:
     """colour_a moved `fraction` (0..1) of the way towards colour_b, as a hex string."""
     a, b = to_rgb(colour_a), to_rgb(colour_b)
@@ -53,6 +59,7 @@ def _dark_palette(background, foreground, accent) -> dict:
     tint = lambda f: mix(background, foreground, f)  # noqa: E731
     return {
         "grid": tint(0.22),
+        "rings": tint(0.3),
         # On a dark chart the darkest level of darkness is the background itself.
         "shades": (tint(0.20), tint(0.13), tint(0.07), tint(0.0)),
         "limit": accent,

@@ -8,10 +8,11 @@ import sys
 import warnings
 
 from ..core.timescale import StaleEarthOrientation
-from . import drift_cmd, plan_cmd, positions_cmd
+from . import drift_cmd, export_cmd, gui_cmd, mount_cmd, plan_cmd, positions_cmd
 
 EXIT_INPUT_ERROR = 2
-COMMANDS = {"positions": positions_cmd, "drift": drift_cmd, "plan": plan_cmd}
+COMMANDS = {"positions": positions_cmd, "drift": drift_cmd, "plan": plan_cmd,
+            "export": export_cmd, "mount": mount_cmd, "gui": gui_cmd}
 
 
 class _Parser(argparse.ArgumentParser):

@@ -27,6 +27,9 @@ DEFAULT_PRIORITY = 3
 DEFAULT_EXPOSURE_S = 300.0
 DEFAULT_REPEATS = 1
 DARKNESS_LEVELS = ("civil", "nautical", "astronomical")
+# Wall-time budget of the schedule search: insertion alone reaches ~98 % of a long search's
+# total priority within 0.05 s (benchmarks/bench_schedule.py); the rest polishes.
+SCHEDULE_SECONDS = 0.3
 
 
 @dataclass(frozen=True, eq=False)
@@ -53,26 +56,64 @@ class Plan:
             return None
         return iso_z(self.sky.time_at(float(seconds)))
 
+    def iso_many(self, seconds) -> list:
+        """ISO 8601 UTC (Z) strings, to the millisecond, for many instants at once (None for
+        NaN). Offsets are added to the reference as UTC seconds with numpy; a night that holds
+        a leap second goes through astropy instead."""
+        seconds = np.asarray(seconds, dtype=float).ravel()
+        out = [None] * seconds.size
+        finite = np.flatnonzero(np.isfinite(seconds))
+        if finite.size == 0:
+            return out
+        if self._leap_second_inside():
+            texts = iso_z(self.sky.time_at(seconds[finite]))
+        else:
+            ref = np.datetime64(self.t_ref.utc.isot, "ms")
+            stamps = ref + np.round(seconds[finite] * 1000.0).astype("timedelta64[ms]")
+            texts = [text + "Z" for text in np.datetime_as_string(stamps, unit="ms")]
+        for k, text in zip(finite, texts if isinstance(texts, list) else [texts]):
+            out[k] = text
+        return out
+
+    def _leap_second_inside(self) -> bool:
+        """Whether UTC inserts a leap second during the night's window (elapsed SI seconds
+        then differ from the calendar difference of the UTC labels)."""
+        start, end = self.sky.time_at(float(self.sky.t[0])), self.sky.time_at(float(self.sky.t[-1]))
+        labels = (np.datetime64(end.utc.isot, "ms") - np.datetime64(start.utc.isot, "ms"))
+        elapsed = (end.tai - start.tai).to_value("s")
+        return bool(abs(elapsed - labels / np.timedelta64(1, "s")) > 0.5)
+
     def to_json(self) -> dict:
         """The plan as documented for `epochpoint plan --format json`."""
-        w = self.windows
-        targets = []
+        w, order = self.windows, self.schedule
+        # Every instant the JSON names, converted to ISO text in one astropy call.
+        edges = [t for win in w.windows for pair in win for t in pair]
+        instants = np.concatenate([w.transit, np.asarray(edges, dtype=float),
+                                   order.start_s, order.end_s])
+        iso = iter(self.iso_many(instants))
+        transit = [next(iso) for _ in range(len(w.names))]
+        edge_text = [next(iso) for _ in edges]
+        starts = [next(iso) for _ in order.start_s]
+        ends = [next(iso) for _ in order.end_s]
+        targets, k = [], 0
         for i, name in enumerate(w.names):
+            count = 2 * len(w.windows[i])
+            pairs = edge_text[k:k + count]
+            k += count
             targets.append({
                 "name": str(name),
-                "transit": self.iso(w.transit[i]),
+                "transit": transit[i],
                 "max_altitude": _rounded(w.max_altitude[i], 4),
-                "windows": [[self.iso(s), self.iso(e)] for s, e in w.windows[i]],
+                "windows": [pairs[j:j + 2] for j in range(0, count, 2)],
                 "reason": w.reason[i] or None,
                 "priority": int(self.priority[i]),
                 "duration_s": float(self.duration_s[i]),
             })
-        entries = [{"name": str(w.names[i]), "start": self.iso(s), "end": self.iso(e),
+        entries = [{"name": str(w.names[i]), "start": start, "end": end,
                     "slew_s": round(float(slew), 1)}
-                   for i, s, e, slew in zip(self.schedule.index, self.schedule.start_s,
-                                            self.schedule.end_s, self.schedule.slew_s)]
+                   for i, start, end, slew in zip(order.index, starts, ends, order.slew_s)]
         unscheduled = [{"name": str(w.names[u.index]), "reason": w.reason[u.index] or u.reason}
-                       for u in self.schedule.unscheduled]
+                       for u in order.unscheduled]
         return {"site": self.site.name or f"{self.site.latitude},{self.site.longitude}",
                 "date": self.night.date.isoformat(), "darkness": self.constraints.darkness,
                 "night": self.night.to_json(), "moon": self.moon, "targets": targets,
@@ -126,11 +167,12 @@ def centre_on_transit(order: Schedule, blocks: list, transit_s: np.ndarray) -> S
 def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          min_altitude: float | None = None, max_airmass: float | None = None,
          moon_separation: float = 0.0, moon_scale: bool = False,
-         max_seconds: float = 1.0) -> Plan:
+         max_seconds: float = SCHEDULE_SECONDS) -> Plan:
     """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
 
     Altitudes are observed (refracted) altitudes with the site's weather; pressure 0 turns
     refraction off. The mount limits, horizon mask and Sun avoidance of the site always apply.
+    max_seconds bounds the schedule search (more time may find a slightly better order).
     """
     if darkness not in DARKNESS_LEVELS:
         raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "

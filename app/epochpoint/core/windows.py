@@ -25,7 +25,7 @@ from .sky_track import SkyTrack
 from .targets import Targets
 from .vectors import wrap_pm180
 
-_REFINE_STEPS = 8  # bisection halvings of a sample step (120 s -> 0.5 s)
+_REFINE_STEPS = 10  # bisection halvings of a sample step (300 s -> 0.3 s)
 
 
 @dataclass(frozen=True)
@@ -42,7 +42,7 @@ class Constraints:
     max_airmass: float | None = None
     moon_separation: float = 0.0
     moon_scale: bool = False
-    sample_step: float = 120.0
+    sample_step: float = 300.0
 
     def altitude_limit(self, site: Site) -> float:
         """The observed altitude every window must stay above."""
@@ -120,70 +120,89 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
     dec_ok = (geo.dec >= mount.dec_min) & (geo.dec <= mount.dec_max)
     checks = _SampledChecks(geo, site, constraints, span)
 
-    windows, reasons = [], np.full(n, "", dtype=object)
-    for i in range(n):
-        if not dark:
-            reasons[i] = f"no {constraints.darkness} darkness tonight"
-        elif not dec_ok[i]:
-            reasons[i] = "outside the mount's declination limits"
-        elif state[i] < 0:
-            reasons[i] = f"never rises above {limit:g} deg"
-        if reasons[i]:
-            windows.append([])
-            continue
-        up = _ha_pieces(geo, i, h0[i], 180.0, 180.0, None, dark)
-        if not up:
-            windows.append([])
-            reasons[i] = f"above {limit:g} deg only in daylight"
-            continue
-        pieces = _ha_pieces(geo, i, h0[i], mount.ha_east * 15.0, mount.ha_west * 15.0,
-                            mount.meridian_limit if mount.mount_type == "german" else None, dark)
-        if not pieces:
-            windows.append([])
-            reasons[i] = "outside the mount's hour-angle limits"
-            continue
-        pieces, reasons[i] = checks.apply(i, pieces)
-        windows.append(pieces)
+    reasons = np.full(n, "", dtype=object)
+    german = mount.meridian_limit if mount.mount_type == "german" else None
+    up = _ha_windows(geo, h0, 180.0, 180.0, None, dark)
+    allowed = _ha_windows(geo, h0, mount.ha_east * 15.0, mount.ha_west * 15.0, german, dark)
+    # The first constraint that leaves nothing names the reason.
+    rules = ((not dark, f"no {constraints.darkness} darkness tonight"),
+             (~dec_ok, "outside the mount's declination limits"),
+             (state < 0, f"never rises above {limit:g} deg"),
+             (~up.any(axis=1), f"above {limit:g} deg only in daylight"),
+             (~allowed.any(axis=1), "outside the mount's hour-angle limits"))
+    for broken, reason in rules:
+        reasons[(reasons == "") & broken] = reason
+    windows = _interval_lists(allowed, reasons == "", dark)
+    checks.apply(windows, reasons)
     return TargetWindows(names=targets.names(), windows=[iv.union(w) for w in windows],
                          blocks=windows, transit=transit,
                          max_altitude=max_alt, ra=geo.ra, dec=geo.dec, reason=reasons,
                          dark=list(dark), geometry=geo)
 
 
-def _ha_pieces(geo: _Geometry, i: int, h0: float, east: float, west: float,
-               meridian_limit: float | None, dark: list) -> list:
-    """Time intervals inside `dark` where |HA| allows altitude >= limit and the HA limits.
+class _Candidates:
+    """Per-target candidate intervals (n, K) in seconds; `valid` marks the non-empty ones."""
 
-    With a German mount's meridian limit m the allowed hour angles [-a, b] become two
-    overlapping windows [-a, m] (before the flip) and [0, b] (after it).
+    def __init__(self, start: np.ndarray, end: np.ndarray):
+        self.start, self.end = start, end
+        self.valid = end > start
+
+    def any(self, axis=1):
+        return self.valid.any(axis=axis)
+
+
+def _ha_windows(geo: _Geometry, h0: np.ndarray, east: float, west: float,
+                meridian_limit: float | None, dark: list) -> _Candidates:
+    """Intervals inside the dark span where the hour angle allows altitude >= limit (|HA| <=
+    h0) and the mount's hour-angle limits, for all targets at once.
+
+    The allowed hour angles repeat every 360 deg: [-a, b] with a = min(h0, east),
+    b = min(h0, west). A German mount with meridian limit m cannot track through HA = +m:
+    its allowed range becomes two overlapping windows [-a, m] (before the flip) and
+    [0, b] (after it); with no limits at all it may track from HA = 0 round to 360 + m.
     """
-    a, b = min(h0, east), min(h0, west)
-    if a + b >= 360.0 and meridian_limit is None:
-        return [(s, e) for s, e in dark]
-    if meridian_limit is not None and b > meridian_limit:
-        ha_pieces = [(-a, meridian_limit), (max(-a, 0.0), b)]
+    n = h0.shape[0]
+    lo_t, hi_t = (dark[0][0], dark[-1][1]) if dark else (0.0, 0.0)
+    a, b = np.minimum(h0, east), np.minimum(h0, west)
+    full = a + b >= 360.0
+    pieces = []
+    if meridian_limit is None:
+        pieces.append((np.where(full, -1e9, -a), np.where(full, 1e9, b)))
     else:
-        ha_pieces = [(-a, b)]
-    times = []
-    lo_t, hi_t = dark[0][0], dark[-1][1]
-    ha_lo = geo.ha(i, lo_t)
-    for k in range(int(np.floor((ha_lo - 540.0) / 360.0)), int(np.ceil((ha_lo + 540.0) / 360.0))):
-        for start_ha, end_ha in ha_pieces:
-            start = geo.time_of_ha(i, start_ha + 360.0 * k)
-            end = geo.time_of_ha(i, end_ha + 360.0 * k)
-            if end > lo_t and start < hi_t:
-                times.append((float(start), float(end)))
-    # Join pieces that touch across periods; overlapping (flip) pieces stay separate.
-    times.sort()
-    joined = []
-    for start, end in times:
-        if joined and abs(start - joined[-1][1]) < 1e-6:
-            joined[-1] = (joined[-1][0], end)
-        else:
-            joined.append((start, end))
+        split = b > meridian_limit
+        pieces.append((np.where(full, 0.0, -a), np.where(full, 360.0 + meridian_limit,
+                                                          np.where(split, meridian_limit, b))))
+        pieces.append((np.where(split & ~full, np.maximum(-a, 0.0), np.nan),
+                       np.where(split & ~full, b, np.nan)))
+    ha_lo = geo.ha(np.arange(n), lo_t)
+    k0 = np.floor((ha_lo - 180.0) / 360.0)
+    starts, ends = [], []
+    for start_ha, end_ha in pieces:
+        for dk in range(-1, 3):
+            shift = 360.0 * (k0 + dk)
+            t0 = geo.time_of_ha(np.arange(n), start_ha + shift)
+            t1 = geo.time_of_ha(np.arange(n), end_ha + shift)
+            starts.append(np.clip(t0, lo_t, hi_t))
+            ends.append(np.clip(t1, lo_t, hi_t))
+    start = np.stack(starts, axis=1)
+    end = np.stack(ends, axis=1)
+    end = np.where(np.isnan(end) | np.isnan(start), -np.inf, end)
+    return _Candidates(np.nan_to_num(start, nan=np.inf), end)
+
+
+def _interval_lists(c: _Candidates, keep: np.ndarray, dark: list) -> list:
+    """Per target, its valid candidate intervals as a sorted list (only where `keep`),
+    intersected with the dark intervals when there are several."""
     out = []
-    for piece in joined:
-        out.extend(iv.intersect([piece], dark))
+    for i in range(c.start.shape[0]):
+        if not keep[i]:
+            out.append([])
+            continue
+        cols = np.flatnonzero(c.valid[i])
+        pieces = sorted({(float(c.start[i, j]), float(c.end[i, j])) for j in cols})
+        if len(dark) > 1:
+            pieces = [part for piece in pieces for part in iv.intersect([piece], dark)]
+        out.append(pieces)
     return out
 
 
@@ -202,38 +221,39 @@ def _transit_and_peak(geo: _Geometry, span: list):
 
 
 class _SampledChecks:
-    """The horizon mask, Sun avoidance and Moon separation, sampled and refined."""
+    """The horizon mask, Sun avoidance and Moon separation, sampled for all targets at once
+    on one grid over the dark span and refined by vectorized bisection at each change."""
 
     def __init__(self, geo: _Geometry, site: Site, constraints: Constraints, span: list):
         self.geo, self.site, self.c = geo, site, constraints
         self.mask = site.interlocks.horizon
         self.sun_radius = site.interlocks.sun_avoidance
         self.moon_on = constraints.moon_separation > 0.0
-        self.needed = self._screen(span, constraints.altitude_limit(site))
+        self.span = (float(span[0][0]), float(span[-1][1]))
+        self.needed = self._screen(constraints.altitude_limit(site))
 
-    def _screen(self, span: list, limit: float) -> dict:
+    def _screen(self, limit: float) -> dict:
         """Which targets each sampled check can possibly cut, from a coarse all-target pass.
 
         The Sun moves under 0.5 deg in a night and the Moon about 0.55 deg an hour, so a
         target farther than the limit plus that motion from the coarse samples is never cut.
         """
         geo, n = self.geo, self.geo.ra.shape[0]
-        t = np.linspace(span[0][0], span[-1][1], 25)
-        target = _unit(geo.ra, geo.dec)
+        t = np.linspace(self.span[0], self.span[1], 25)[None, :]
+        target = _unit(geo.ra, geo.dec)[:, :, None]
         needed = {"mask": np.full(n, self.mask is not None and
                                   float(self.mask.altitude.max()) > limit)}
-        sun_sep = np.min([geo.sky.separation_from("sun", target, np.full(n, ti)) for ti in t],
-                         axis=0)
-        needed["sun"] = sun_sep < self.sun_radius + 1.0
+        sun_sep = geo.sky.separation_from("sun", target, t).min(axis=1)
+        needed["sun"] = (self.sun_radius > 0.0) & (sun_sep < self.sun_radius + 1.0)
         if self.moon_on:
-            moon_sep = np.min([geo.sky.separation_from("moon", target, np.full(n, ti))
-                               for ti in t], axis=0)
+            moon_sep = geo.sky.separation_from("moon", target, t).min(axis=1)
             needed["moon"] = moon_sep < self.c.moon_separation + 1.0
         else:
             needed["moon"] = np.zeros(n, dtype=bool)
         return needed
 
     def _ok(self, which: str, idx, t):
+        """Whether the check passes for targets idx at times t (broadcasting)."""
         geo = self.geo
         if which == "mask":
             alt, az = geo.observed_altaz(idx, t)
@@ -247,42 +267,58 @@ class _SampledChecks:
         moon_up = geo.sky.interp("moon_alt", t) > -0.833
         return ~moon_up | (geo.sky.separation_from("moon", target, t) >= required)
 
-    def apply(self, i: int, pieces: list):
-        """Pieces cut by each sampled check in turn; the reason if nothing is left."""
+    def apply(self, windows: list, reasons: np.ndarray) -> None:
+        """Cut every target's pieces by each check in turn, in place; record the reason of
+        targets left with nothing."""
         for which, reason in (("mask", "behind the horizon mask"),
                               ("sun", "too near the Sun"), ("moon", "too near the Moon")):
-            if not self.needed[which][i]:
+            idx = np.array([i for i in np.flatnonzero(self.needed[which]) if windows[i]],
+                           dtype=int)
+            if idx.size == 0:
                 continue
-            pieces = [part for piece in pieces for part in self._cut(which, i, piece)]
-            if not pieces:
-                return [], reason
-        return pieces, ""
+            allowed = self._allowed(which, idx)
+            for i, intervals in zip(idx, allowed):
+                windows[i] = [part for piece in windows[i] for part in iv.intersect([piece], intervals)]
+                if not windows[i]:
+                    reasons[i] = reason
 
-    def _cut(self, which: str, i: int, piece) -> list:
-        start, end = piece
-        steps = max(2, int(np.ceil((end - start) / self.c.sample_step)) + 1)
-        t = np.linspace(start, end, steps)
-        ok = self._ok(which, np.full(steps, i), t)
-        if ok.all():
-            return [piece]
-        out = []
-        for a, b in iv.runs(ok, np.arange(steps)):
-            lo = t[a] if a == 0 else self._edge(which, i, t[a - 1], t[a])
-            hi = t[b] if b == steps - 1 else self._edge(which, i, t[b + 1], t[b])
-            if hi > lo:
-                out.append((float(lo), float(hi)))
-        return out
+    def _allowed(self, which: str, idx: np.ndarray) -> list:
+        """For targets idx, the intervals of the span where the check passes."""
+        steps = max(2, int(np.ceil((self.span[1] - self.span[0]) / self.c.sample_step)) + 1)
+        t = np.linspace(self.span[0], self.span[1], steps)
+        ok = self._ok(which, idx[:, None], t[None, :])
+        padded = np.zeros((idx.size, steps + 2), dtype=np.int8)
+        padded[:, 1:-1] = ok
+        change = np.diff(padded, axis=1)
+        # Rising edges start a run at sample j, falling edges end one at sample j - 1.
+        rows_up, cols_up = np.nonzero(change == 1)
+        rows_down, cols_down = np.nonzero(change == -1)
+        starts = self._edges(which, idx[rows_up], t, cols_up, rising=True)
+        ends = self._edges(which, idx[rows_down], t, cols_down - 1, rising=False)
+        allowed = [[] for _ in range(idx.size)]
+        for row, start, end in zip(rows_up, starts, ends):
+            if end > start:
+                allowed[row].append((float(start), float(end)))
+        return allowed
 
-    def _edge(self, which: str, i: int, t_bad: float, t_good: float) -> float:
-        """Bisection between a failing and a passing instant; returns the passing side."""
-        idx = np.array([i])
+    def _edges(self, which: str, idx, t, cols, rising: bool) -> np.ndarray:
+        """Refined times of run edges at sample columns `cols` (the first or last passing
+        sample); the span's own ends stay where they are."""
+        edge = t[cols].copy()
+        inner = (cols > 0) if rising else (cols < t.size - 1)
+        if not inner.any():
+            return edge
+        t_good = t[cols[inner]]
+        t_bad = t[cols[inner] - 1] if rising else t[cols[inner] + 1]
+        k = idx[inner]
+        # Bisection between a failing and a passing sample, all edges at once.
         for _ in range(_REFINE_STEPS):
             mid = 0.5 * (t_bad + t_good)
-            if self._ok(which, idx, np.array([mid]))[0]:
-                t_good = mid
-            else:
-                t_bad = mid
-        return t_good
+            passed = self._ok(which, k, mid)
+            t_good = np.where(passed, mid, t_good)
+            t_bad = np.where(passed, t_bad, mid)
+        edge[inner] = t_good
+        return edge
 
 
 def _unit(ra_deg, dec_deg):

@@ -22,6 +22,9 @@ Any other table, or any other key in [site] or [weather], is an error naming fil
 key, so a misspelt key never passes silently. Values outside their physical range are refused
 by `Site` itself; its message reaches the user as one line naming the file.
 
+The same tables, parsed into a dict from another container (the JSON plan file), become a
+Site with `site_from_tables(tables, path)`; `site_to_tables(site)` writes them back.
+
 The string form `LAT,LON[,HEIGHT]` gives degrees (north and east positive) and metres, e.g.
 `-24.6,-70.4,2635`; the height defaults to 0 and the weather to Site's defaults.
 """
@@ -36,7 +39,7 @@ from epochpoint.core.site import Site, SiteError
 
 from .errors import InputError, quote
 from .filebytes import decode_utf8, read_file_bytes
-from .sitelimits import read_interlocks
+from .sitelimits import interlocks_to_tables, read_interlocks
 
 SITE_KEYS = ("name", "latitude", "longitude", "height", "timezone")
 WEATHER_KEYS = ("pressure", "temperature", "humidity", "wavelength")
@@ -102,15 +105,25 @@ def read_site_file(path) -> tuple[Site, dict]:
     """(Site, {interlock table name: its raw contents}) from a TOML site file (schema above)."""
     path = os.fspath(path)
     document = _load_toml(path)
-    for name, table in document.items():
+    site = site_from_tables(document, path)
+    reserved = {name: document[name] for name in RESERVED_TABLES if name in document}
+    return site, reserved
+
+
+def site_from_tables(tables: dict, path) -> Site:
+    """A Site from the tables of a site file already parsed into a dict ({"site": {...},
+    "weather": {...}, "horizon": ..., "mount": ..., "safety": ...}), checked as for the TOML
+    file; errors name `path`, the table and the key. A horizon `file` is relative to `path`."""
+    path = os.fspath(path)
+    for name, table in tables.items():
         if name not in ("site", "weather") + RESERVED_TABLES:
             known = ", ".join(f"[{t}]" for t in ("site", "weather") + RESERVED_TABLES)
             raise InputError(path, f"unknown table or key {quote(name)} (known tables: {known})")
         if not isinstance(table, dict):
             raise InputError(path, f"{name} must be a table, written [{name}]")
-    if "site" not in document:
+    if "site" not in tables:
         raise InputError(path, "has no [site] table")
-    site_table, weather_table = document["site"], document.get("weather", {})
+    site_table, weather_table = tables["site"], tables.get("weather", {})
     _check_keys(path, "site", site_table, SITE_KEYS)
     _check_keys(path, "weather", weather_table, WEATHER_KEYS)
     for key in REQUIRED_SITE_KEYS:
@@ -120,10 +133,22 @@ def read_site_file(path) -> tuple[Site, dict]:
     values.update({key: _value(path, "weather", key, v) for key, v in weather_table.items()})
     if "timezone" in values:
         _check_timezone(path, values["timezone"])
-    reserved = {name: document[name] for name in RESERVED_TABLES if name in document}
+    reserved = {name: tables[name] for name in RESERVED_TABLES if name in tables}
     values["interlocks"] = read_interlocks(path, reserved)
-    site = _make_site(path, None, values)
-    return site, reserved
+    return _make_site(path, None, values)
+
+
+def site_to_tables(site: Site) -> dict:
+    """The tables of a site file for `site` (the inverse of site_from_tables): every value is
+    written out, so reading them back gives an equal Site. The horizon is written as points."""
+    tables = {
+        "site": {"name": site.name, "latitude": site.latitude, "longitude": site.longitude,
+                 "height": site.height, "timezone": site.timezone},
+        "weather": {"pressure": site.pressure, "temperature": site.temperature,
+                    "humidity": site.humidity, "wavelength": site.wavelength},
+    }
+    tables.update(interlocks_to_tables(site.interlocks))
+    return tables
 
 
 def _make_site(path, label, values: dict) -> Site:

@@ -124,3 +124,16 @@ def read_interlocks(path, reserved: dict) -> Interlocks:
         key = "type" if err.field == "mount_type" else err.field
         raise InputError(path, f"table [{table}], key {key}: "
                                f"{str(err).split(': ', 1)[-1]}") from None
+
+
+def interlocks_to_tables(interlocks: Interlocks) -> dict:
+    """The [horizon], [mount] and [safety] tables for `interlocks` (the inverse of
+    read_interlocks); a horizon mask is written as [azimuth, altitude] points."""
+    mount = interlocks.mount
+    tables = {"mount": {key: getattr(mount, field) for key, field in MOUNT_KEYS.items()},
+              "safety": {"sun_avoidance": float(interlocks.sun_avoidance)}}
+    if interlocks.horizon is not None:
+        mask = interlocks.horizon
+        tables["horizon"] = {"points": [[float(a), float(h)]
+                                        for a, h in zip(mask.azimuth, mask.altitude)]}
+    return tables

@@ -1,0 +1,266 @@
+"""Hand-off to the telescope: every target's coordinates at one instant in the frame a
+controller expects, what those numbers mean, which targets the site may point at, and how
+long the numbers stay good.
+
+Frames:
+- apparent: geocentric apparent place, true equator and equinox of date (what an INDI
+  controller's EQUATORIAL_EOD_COORD takes);
+- icrs: the rigorously propagated barycentric ICRS place at the instant (catalogue-style
+  coordinates with the proper motion applied);
+- observed: refracted altitude/azimuth and hour angle/declination at the site.
+
+Interlocks: a target is refused when the site's interlocks (core.limits) forbid it at the
+instant; the Sun's place for the avoidance check is the topocentric apparent place of date
+from core.sunmoon.moon_track, compared with the target's apparent place of date.
+
+Validity window: how long until the exported coordinates of the fastest-moving target change
+by more than the tolerance, from a finite difference of the same computation (positions at
+the instant and one step later): one hour for the apparent and ICRS places (space motion,
+aberration, precession and nutation are slow and smooth over an hour), ten seconds for the
+observed place (the sky turns about 15 arcsec per second, common practice).
+"""
+from __future__ import annotations
+
+import io
+import json
+import os
+import warnings
+
+import numpy as np
+from astropy.time import TimeDelta
+
+from .columns import ColumnTable
+from .constants import DEG_TO_RAD, RAD_TO_ARCSEC
+from .positions import COLUMN_UNITS, positions
+from .site import Site
+from .sunmoon import moon_track
+from .targets import Targets
+from .timescale import iso_z, parse_time
+from .vectors import separation, unit_vectors
+
+FRAMES = ("apparent", "icrs", "observed")
+EXPORT_FORMATS = ("csv", "json", "votable")
+# Exported columns per frame (names and units as in core.positions).
+FRAME_COLUMNS = {
+    "apparent": ("ra_apparent", "dec_apparent"),
+    "icrs": ("ra_propagated", "dec_propagated", "pm_ra_cosdec_propagated",
+             "pm_dec_propagated"),
+    "observed": ("alt", "az", "ha", "dec_observed"),
+}
+# Finite-difference steps for the validity window, seconds.
+VALIDITY_STEP_S = {"apparent": 3600.0, "icrs": 3600.0, "observed": 10.0}
+# Pairs of exported (longitude, latitude) columns whose on-sky motion limits the validity.
+_MOVING_PAIRS = {
+    "apparent": (("ra_apparent", "dec_apparent"),),
+    "icrs": (("ra_propagated", "dec_propagated"),),
+    "observed": (("az", "alt"), ("ha", "dec_observed")),
+}
+_SPACE_MOTION = ("space motion from the catalogue epoch (rigorous propagation of position, "
+                 "proper motion, parallax and radial velocity)")
+_APPARENT_STEPS = ("annual parallax; light deflection by the Sun; annual aberration; frame "
+                   "bias, precession and nutation (IAU 2006/2000A)")
+CORRECTIONS = {
+    "apparent": f"{_SPACE_MOTION}; {_APPARENT_STEPS}",
+    "icrs": f"{_SPACE_MOTION} only: barycentric, no parallax, deflection, aberration, "
+            "precession or nutation",
+    "observed": f"{_SPACE_MOTION}; {_APPARENT_STEPS}; Earth rotation and polar motion; "
+                "diurnal aberration; atmospheric refraction",
+}
+
+
+def sun_separation_deg(site: Site, when, ra_apparent_deg, dec_apparent_deg) -> np.ndarray:
+    """Angle (deg) between each apparent place of date and the Sun seen from the site."""
+    track = moon_track(site, parse_time(when).reshape((1,)))
+    sun = unit_vectors(track.sun_ra_deg * DEG_TO_RAD, track.sun_dec_deg * DEG_TO_RAD)
+    stars = unit_vectors(np.asarray(ra_apparent_deg, dtype=float) * DEG_TO_RAD,
+                         np.asarray(dec_apparent_deg, dtype=float) * DEG_TO_RAD)
+    return separation(stars, sun) / DEG_TO_RAD
+
+
+def refusals(result, site: Site, sun_deg=None) -> np.ndarray:
+    """Why the site's interlocks refuse each target of a positions() result ('' if allowed).
+
+    sun_deg: the targets' separations from the Sun when already computed.
+    """
+    if sun_deg is None:
+        sun_deg = sun_separation_deg(site, result.context.time, result["ra_apparent"],
+                                     result["dec_apparent"])
+    return site.interlocks.violations(result["alt"], result["az"], result["ha"],
+                                      result["dec_observed"], sun_deg)
+
+
+def _motion_arcsec(frame: str, now, later) -> np.ndarray:
+    """Largest on-sky change (arcsec) of each target's exported coordinate pairs."""
+    largest = np.zeros(now.nrows)
+    for lon, lat in _MOVING_PAIRS[frame]:
+        a = unit_vectors(now[lon] * DEG_TO_RAD, now[lat] * DEG_TO_RAD)
+        b = unit_vectors(later[lon] * DEG_TO_RAD, later[lat] * DEG_TO_RAD)
+        largest = np.maximum(largest, separation(a, b) * RAD_TO_ARCSEC)
+    return largest
+
+
+def validity(targets: Targets, site: Site, when, result, frame: str,
+             tolerance_arcsec: float):
+    """(seconds until the fastest target moves by the tolerance, its name, its rate "/s).
+
+    result: the positions of `targets` at `when`. The rate is the on-sky change of the
+    exported coordinates over VALIDITY_STEP_S divided by the step. Seconds is inf when
+    nothing moves (or there are no targets).
+    """
+    if len(targets) == 0:
+        return float("inf"), None, 0.0
+    step_s = VALIDITY_STEP_S[frame]
+    later_time = parse_time(when) + TimeDelta(step_s, format="sec")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the staleness warning was given for the instant
+        later = positions(targets, site if frame == "observed" else None, later_time)
+    rate = _motion_arcsec(frame, result, later) / step_s
+    fastest = int(np.argmax(rate))
+    seconds = tolerance_arcsec / rate[fastest] if rate[fastest] > 0.0 else float("inf")
+    return float(seconds), str(result["name"][fastest]), float(rate[fastest])
+
+
+def _frame_text(frame: str, time_iso: str, site: Site) -> str:
+    if frame == "apparent":
+        return f"true equator and equinox of date {time_iso}"
+    if frame == "icrs":
+        return f"ICRS, epoch {time_iso} (propagated)"
+    if site.pressure == 0.0:
+        weather = "no refraction (pressure 0)"
+    else:
+        weather = (f"{site.pressure:.1f} hPa, {site.temperature:.1f} C, relative humidity "
+                   f"{site.humidity:.2f}, wavelength {site.wavelength:.2f} um")
+    return f"observed alt/az and HA/Dec at the site, refracted with {weather}"
+
+
+def _interlocks_text(site: Site) -> str:
+    lock = site.interlocks
+    mount = lock.mount
+    parts = [f"minimum altitude {mount.min_altitude:g} deg"]
+    if lock.horizon is not None:
+        parts.append("horizon mask")
+    parts += [f"hour angle -{mount.ha_east:g} h to +{mount.ha_west:g} h",
+              f"declination {mount.dec_min:g} to {mount.dec_max:g} deg",
+              f"Sun avoidance {lock.sun_avoidance:g} deg"]
+    return "; ".join(parts)
+
+
+def export_positions(targets: Targets, site: Site, when, frame: str, include_all: bool = False,
+                     tolerance_arcsec: float = 1.0) -> ColumnTable:
+    """Coordinates to hand to a telescope controller, with their metadata.
+
+    frame: 'apparent', 'icrs' or 'observed'. Targets the interlocks refuse at `when` are left
+    out unless include_all, which keeps them with a `refused` column giving the reason ('' for
+    allowed targets). meta holds time, frame, equinox text, corrections, site, interlocks and
+    the validity window (valid_for_s, valid_until, validity_basis); units the column units.
+    Cost: two positions() calls and one Sun place.
+    """
+    if frame not in FRAMES:
+        raise ValueError(f"frame {frame!r} is not one of {', '.join(FRAMES)}")
+    tolerance = float(tolerance_arcsec)
+    if not np.isfinite(tolerance) or tolerance <= 0.0:
+        raise ValueError(f"tolerance must be a positive number of arcsec, got {tolerance_arcsec}")
+    result = positions(targets, site, when)
+    reasons = refusals(result, site)
+    keep = np.ones(len(targets), bool) if include_all else reasons == ""
+    rows = np.flatnonzero(keep)
+    exported = targets[rows]
+    shown = result.select(rows)
+    instant = result.context.time
+    seconds, fastest, rate = validity(exported, site, instant, shown, frame, tolerance)
+
+    columns = {"name": shown["name"]}
+    columns.update({c: shown[c] for c in FRAME_COLUMNS[frame]})
+    if include_all:
+        columns["refused"] = reasons[rows]
+    time_iso = result.meta["time"]
+    meta = {"time": time_iso, "frame": frame, "equinox": _frame_text(frame, time_iso, site),
+            "corrections": CORRECTIONS[frame]}
+    meta.update({k: result.meta[k] for k in ("site", "latitude", "longitude", "height")})
+    meta["interlocks"] = _interlocks_text(site)
+    meta.update(targets_allowed=int(np.count_nonzero(reasons == "")),
+                targets_refused=int(np.count_nonzero(reasons != "")),
+                tolerance_arcsec=tolerance)
+    meta.update(_validity_meta(frame, instant, seconds, fastest, rate, tolerance,
+                               exported=len(rows) > 0))
+    if "earth_orientation_warning" in result.meta:
+        meta["earth_orientation_warning"] = result.meta["earth_orientation_warning"]
+    units = {c: COLUMN_UNITS[c] for c in FRAME_COLUMNS[frame]}
+    return ColumnTable(columns, meta, units)
+
+
+def _validity_meta(frame, t, seconds, fastest, rate, tolerance, exported: bool) -> dict:
+    if not np.isfinite(seconds):
+        why = "no exported target moves in this frame" if exported else "no target exported"
+        return {"valid_for_s": None, "valid_until": "unlimited", "validity_basis": why}
+    per = "arcsec per second" if frame == "observed" else "arcsec per hour"
+    shown_rate = rate if frame == "observed" else rate * 3600.0
+    basis = (f"{tolerance:g} arcsec / {shown_rate:.6g} {per}, the largest on-sky change of "
+             f"the exported coordinates (target {fastest}) over "
+             f"{VALIDITY_STEP_S[frame]:g} s")
+    if frame == "observed":
+        basis = "the sky turns about 15 arcsec per second: " + basis
+    until = iso_z(t + TimeDelta(min(seconds, 1e4 * 86400.0 * 365.25), format="sec"))
+    return {"valid_for_s": seconds, "valid_until": until, "validity_basis": basis}
+
+
+# -- files ------------------------------------------------------------------------------------
+
+def export_text(table: ColumnTable, format: str) -> str:
+    """The text of an export in one of EXPORT_FORMATS, metadata included in every format.
+
+    csv: `# key: value` lines, then the table. json: {"meta", "units", "targets": [rows]}.
+    votable: IVOA VOTable 1.4 through astropy; every meta item as an INFO of the resource,
+    the numeric ones also as PARAMs of the table (with units).
+    """
+    from ..io.results import result_csv, result_json
+
+    columns = dict(table)
+    if format == "csv":
+        return result_csv(columns, {k: "" if v is None else v for k, v in table.meta.items()})
+    if format == "json":
+        document = {"meta": table.meta, "units": table.units,
+                    "targets": json.loads(result_json(columns))}
+        return json.dumps(document, indent=1, allow_nan=False) + "\n"
+    if format == "votable":
+        return _votable_text(table)
+    raise ValueError(f"unknown export format {format!r} (use {', '.join(EXPORT_FORMATS)})")
+
+
+_PARAM_UNITS = {"tolerance_arcsec": "arcsec", "valid_for_s": "s", "latitude": "deg",
+                "longitude": "deg", "height": "m"}
+
+
+def _votable_text(table: ColumnTable) -> str:
+    from astropy.io.votable import from_table
+    from astropy.io.votable.tree import Info, Param
+
+    from ..io.results import result_table
+
+    votable = from_table(result_table(dict(table), {}, table.units))
+    resource, vo_table = votable.resources[0], votable.resources[0].tables[0]
+    for key, value in table.meta.items():
+        resource.infos.append(Info(name=key, value="" if value is None else str(value)))
+        if isinstance(value, (int, float)) and not isinstance(value, bool) and \
+                np.isfinite(value):
+            datatype = "int" if isinstance(value, int) else "double"
+            vo_table.params.append(Param(votable, ID=f"param_{key}", name=key,
+                                         datatype=datatype, value=value,
+                                         unit=_PARAM_UNITS.get(key)))
+    out = io.BytesIO()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # VOTable notes on names that are not XML IDs
+        # astropy's pure-Python TABLEDATA writer, as io.astropytables explains.
+        votable.to_xml(out, _debug_python_based_parser=True)
+    return out.getvalue().decode("utf-8")
+
+
+def write_export(table: ColumnTable, path, format: str) -> None:
+    """Save an export atomically (temporary file in the same folder, fsync, rename)."""
+    from ..io import InputError, atomic_write_text
+
+    text = export_text(table, format)
+    try:
+        atomic_write_text(path, text)
+    except OSError as err:
+        raise InputError(os.fspath(path), f"cannot be written ({err.strerror or err})") from None

@@ -1,0 +1,165 @@
+"""File handling of the main window: new, open, import, save, save as, recent files, and
+the question before unsaved changes are dropped. Mixed into MainWindow, whose document,
+settings, autosaver and message helpers it uses."""
+from __future__ import annotations
+
+import os
+
+from PySide6.QtGui import QKeySequence
+from PySide6.QtWidgets import QFileDialog, QMessageBox
+
+from epochpoint.io import read_targets
+from epochpoint.io.errors import InputError
+from epochpoint.io.planfile import write_plan_file
+
+from .document import empty_plan
+from .loading import PLAN_FILE_FILTER, TARGET_FILE_FILTER, load_path
+from .recovery import add_recent_file, newer_recovery, recent_files, remove_recent_file
+
+
+class FileActions:
+    """The File menu's work (see module docstring)."""
+
+    def new_document(self) -> None:
+        if not self.maybe_save():
+            return
+        self.document.load(empty_plan(), None)
+
+    def open_dialog(self) -> None:
+        if not self.maybe_save():
+            return
+        path, _ = QFileDialog.getOpenFileName(self, "Open plan or target list",
+                                              self._start_folder(),
+                                              f"{PLAN_FILE_FILTER};;{TARGET_FILE_FILTER};;"
+                                              "All files (*)")
+        if path:
+            self.open_path(path)
+
+    def open_path(self, path: str, site_spec: str | None = None, night: str | None = None,
+                  offer_recovery: bool = True) -> bool:
+        """Open a plan file or a target list; on bad input show the error, keep the document."""
+        try:
+            doc, kept_path = load_path(path, site_spec, night)
+        except (InputError, ValueError, OSError) as err:
+            self.show_error("Cannot open", one_line(err))
+            return False
+        restored = False
+        recovery = newer_recovery(self.autosaver.folder, kept_path) if offer_recovery else None
+        if recovery and self.interactive and self.ask(
+                "Restore unsaved changes?",
+                f"Unsaved changes to {os.path.basename(path)} were kept from an earlier "
+                "session. Restore them?"):
+            try:
+                doc, restored = load_path(recovery)[0], True
+            except (InputError, ValueError, OSError) as err:
+                self.show_error("Cannot restore", one_line(err))
+        self.document.load(doc, kept_path, dirty=restored or kept_path is None)
+        if kept_path:
+            self._remember(kept_path)
+        self.show_message(f"Opened {path}" + (" (with restored changes)" if restored else ""))
+        self.recompute_timer.start()
+        return True
+
+    def offer_untitled_recovery(self) -> bool:
+        """At start without a file: offer the unsaved untitled plan of an earlier session."""
+        recovery = newer_recovery(self.autosaver.folder, None)
+        if not (recovery and self.interactive and self.ask(
+                "Restore unsaved plan?", "An unsaved plan was kept from an earlier session. "
+                                         "Restore it?")):
+            return False
+        try:
+            doc, _ = load_path(recovery)
+        except (InputError, ValueError, OSError) as err:
+            self.show_error("Cannot restore", one_line(err))
+            return False
+        self.document.load(doc, None, dirty=True)
+        return True
+
+    def import_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(self, "Import targets", self._start_folder(),
+                                              f"{TARGET_FILE_FILTER};;All files (*)")
+        if path:
+            self.import_path(path)
+
+    def import_path(self, path: str) -> bool:
+        try:
+            self.document.import_targets(read_targets(path), path)
+        except (InputError, ValueError, OSError) as err:
+            self.show_error("Cannot import", one_line(err))
+            return False
+        self.show_message(f"Imported targets from {path}")
+        return True
+
+    def save(self) -> bool:
+        path = self.document.path
+        if not path or not path.lower().endswith(".json"):
+            return self.save_as()
+        return self.save_to(path)
+
+    def save_as(self) -> bool:
+        suggestion = self.document.path or os.path.join(self._start_folder(), "plan.json")
+        if not suggestion.lower().endswith(".json"):
+            suggestion = os.path.splitext(suggestion)[0] + ".json"
+        path, _ = QFileDialog.getSaveFileName(self, "Save plan", suggestion, PLAN_FILE_FILTER)
+        if not path:
+            return False
+        if not path.lower().endswith(".json"):
+            path += ".json"
+        return self.save_to(path)
+
+    def save_to(self, path: str) -> bool:
+        try:
+            write_plan_file(path, self.document.to_plan_document())
+        except (OSError, ValueError) as err:
+            self.show_error("Cannot save", one_line(err))
+            return False
+        self.document.mark_saved(path)
+        self.autosaver.clear()
+        self._remember(path)
+        self.show_message(f"Saved {path}", 5000)
+        return True
+
+    def maybe_save(self) -> bool:
+        """True when it is fine to drop the document (saved, discarded or clean)."""
+        if not self.document.dirty or not self.interactive:
+            return True
+        answer = QMessageBox.question(
+            self, "Unsaved changes", "The plan has unsaved changes. Save them first?",
+            QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Discard
+            | QMessageBox.StandardButton.Cancel)
+        if answer == QMessageBox.StandardButton.Save:
+            return self.save()
+        return answer == QMessageBox.StandardButton.Discard
+
+    def _start_folder(self) -> str:
+        files = recent_files(self.settings)
+        return os.path.dirname(files[0]) if files else os.getcwd()
+
+    def _remember(self, path: str) -> None:
+        add_recent_file(self.settings, path)
+        self._fill_recent_menu()
+
+    def _fill_recent_menu(self) -> None:
+        self.recent_menu.clear()
+        files = recent_files(self.settings)
+        for i, path in enumerate(files):
+            action = self.recent_menu.addAction(f"&{i + 1} {os.path.basename(path)}")
+            action.setToolTip(path)
+            action.setShortcut(QKeySequence(f"Alt+Shift+{i + 1}"))
+            action.triggered.connect(lambda _=False, p=path: self._open_recent(p))
+        self.recent_menu.setEnabled(bool(files))
+
+    def _open_recent(self, path: str) -> None:
+        if not os.path.exists(path):
+            remove_recent_file(self.settings, path)
+            self._fill_recent_menu()
+            self.show_error("Cannot open", f"{path}: the file no longer exists")
+            return
+        if self.maybe_save():
+            self.open_path(path)
+
+
+def one_line(err: BaseException) -> str:
+    if isinstance(err, OSError) and err.filename:
+        return f"{err.filename}: {err.strerror or err}"
+    return " ".join(str(err).split()) or type(err).__name__

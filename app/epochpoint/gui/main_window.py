@@ -1,0 +1,500 @@
+"""The main window: caution strip, night settings, target list, tabs, ledger dock, status bar.
+
+Layout (top to bottom): the caution strip; a note while the site is only a placeholder; the
+night settings bar; a splitter with the target list (filter box above it) on the left and the
+tabs Tonight / Sky dome / Drift / Site & limits on the right; the correction ledger docked
+below; the status bar with messages, a progress bar and Cancel while a task runs, and the
+clocks. Every action has a keyboard shortcut.
+
+Recompute: any change of targets, site or night settings restarts a RECOMPUTE_DELAY_MS timer;
+when it fires, the night's plan and the state "now" run in workers (a newer request cancels
+the older one). The state now is also refreshed every NOW_REFRESH_MS and whenever the
+selected target changes (for its correction ledger).
+"""
+from __future__ import annotations
+
+import os
+
+from PySide6.QtCore import QSettings, Qt, QTimer
+from PySide6.QtGui import QCursor, QKeySequence, QShortcut
+from PySide6.QtWidgets import (QAbstractItemView, QApplication, QDockWidget, QFrame,
+                               QHBoxLayout, QHeaderView, QLabel, QLineEdit, QMainWindow,
+                               QMessageBox, QProgressBar, QPushButton, QScrollArea, QSplitter,
+                               QTableView, QTabWidget, QToolTip, QVBoxLayout, QWidget)
+
+from epochpoint import __version__
+from epochpoint.io.planfile import schedule_entries
+
+from . import themes, workers
+from .caution import CautionStrip
+from .document import Document
+from .file_actions import FileActions
+from .menus import build_menus
+from .night_bar import NightBar
+from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
+from .recompute import night_plan, now_state
+from .recovery import Autosaver
+from .status import StatusClocks
+from .target_model import COLUMNS, Computed, TargetFilterProxy, TargetTableModel
+
+RECOMPUTE_DELAY_MS = 300
+NOW_REFRESH_MS = 30_000
+LEDGER_HEIGHT = 250
+APP_TITLE = "Epochpoint"
+
+
+class MainWindow(FileActions, QMainWindow):
+    def __init__(self, settings: QSettings | None = None, recovery_folder: str | None = None,
+                 interactive: bool = True):
+        super().__init__()
+        self.settings = settings or QSettings()
+        self.interactive = interactive
+        self.document = Document(self)
+        self.plan = None
+        self.now = None
+        self.selected: int | None = None
+        self._plan_task = self._now_task = None
+        self._plan_generation = -1
+        self._targets_for_drift = None
+
+        self._build_central()
+        self.actions_by_name = build_menus(self)
+        self._fill_recent_menu()
+        self._build_status_bar()
+        self._connect_document()
+        self.autosaver = Autosaver(self.document, recovery_folder, parent=self)
+
+        self.recompute_timer = QTimer(self)
+        self.recompute_timer.setSingleShot(True)
+        self.recompute_timer.setInterval(RECOMPUTE_DELAY_MS)
+        self.recompute_timer.timeout.connect(self.recompute)
+        self.now_timer = QTimer(self)
+        self.now_timer.setInterval(NOW_REFRESH_MS)
+        self.now_timer.timeout.connect(self.refresh_now)
+        self.now_timer.start()
+
+        self.set_theme(themes.saved_theme(self.settings), remember=False)
+        self._refresh_document_views()
+        self._update_title()
+        self.resize(1440, 900)
+
+    # ================================================================== construction
+    def _build_central(self) -> None:
+        self.caution = CautionStrip()
+        self.site_note = QFrame()
+        self.site_note.setObjectName("siteNote")
+        note_layout = QHBoxLayout(self.site_note)
+        note_layout.setContentsMargins(10, 4, 10, 4)
+        self.site_note_label = QLabel(
+            "The site is a placeholder at latitude 0°, longitude 0°: nothing computed here "
+            "applies to your telescope until you set your site (Site & limits tab, Ctrl+4).")
+        self.site_note_label.setWordWrap(True)
+        set_site = QPushButton("Set the site…")
+        set_site.clicked.connect(lambda: self.show_tab(3))
+        note_layout.addWidget(self.site_note_label, 1)
+        note_layout.addWidget(set_site)
+        self.night_bar = NightBar()
+
+        # Left: the filter box and the target table.
+        self.model = TargetTableModel(self.document, self)
+        self.proxy = TargetFilterProxy(self)
+        self.proxy.setSourceModel(self.model)
+        self.filter_box = QLineEdit()
+        self.filter_box.setPlaceholderText("Filter by name or notes  (Ctrl+F)")
+        self.filter_box.setClearButtonEnabled(True)
+        self.filter_box.textChanged.connect(self.proxy.setFilterFixedString)
+        self.table = QTableView()
+        self.table.setObjectName("targetTable")
+        self.table.setModel(self.proxy)
+        self.table.setSortingEnabled(True)
+        self.table.horizontalHeader().setSortIndicator(-1, Qt.SortOrder.AscendingOrder)
+        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+        self.table.setSelectionMode(QAbstractItemView.SelectionMode.ExtendedSelection)
+        self.table.setEditTriggers(QAbstractItemView.EditTrigger.EditKeyPressed
+                                   | QAbstractItemView.EditTrigger.DoubleClicked
+                                   | QAbstractItemView.EditTrigger.AnyKeyPressed)
+        self.table.setAlternatingRowColors(True)
+        self.table.setTabKeyNavigation(False)  # Tab leaves the table; arrows move inside
+        self.table.setWordWrap(False)
+        self.table.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
+        vertical = self.table.verticalHeader()
+        vertical.setSectionResizeMode(QHeaderView.ResizeMode.Fixed)  # uniform rows: no scan
+        vertical.setDefaultSectionSize(self.fontMetrics().height() + 8)
+        vertical.setVisible(False)
+        header = self.table.horizontalHeader()
+        header.setSectionsMovable(True)
+        header.setStretchLastSection(True)
+        header.setHighlightSections(False)
+        for i, spec in enumerate(COLUMNS):
+            header.resizeSection(i, spec.width)
+        self.table.selectionModel().currentRowChanged.connect(self._on_current_row)
+        # Delete in the list removes the selected targets (undoable); an open cell editor
+        # keeps the key for itself.
+        delete = QShortcut(QKeySequence(QKeySequence.StandardKey.Delete), self.table)
+        delete.setContext(Qt.ShortcutContext.WidgetWithChildrenShortcut)
+        delete.activated.connect(self.remove_selected)
+        self.model.edit_rejected.connect(self._on_edit_rejected)
+        self.count_label = QLabel()
+        self.count_label.setProperty("role", "fieldLabel")
+        left = QWidget()
+        left_layout = QVBoxLayout(left)
+        left_layout.setContentsMargins(6, 6, 0, 6)
+        top_row = QHBoxLayout()
+        heading = QLabel("<b>Targets</b>")
+        top_row.addWidget(heading)
+        top_row.addWidget(self.filter_box, 1)
+        top_row.addWidget(self.count_label)
+        left_layout.addLayout(top_row)
+        left_layout.addWidget(self.table, 1)
+
+        # Right: the tabs.
+        self.tabs = QTabWidget()
+        self.tabs.setDocumentMode(True)
+        self.tonight, self.skydome = TonightPanel(self), SkyDomePanel(self)
+        self.drift, self.site_editor = DriftPanel(self), SiteEditor(self)
+        for widget, title in ((self.tonight, "&Tonight"), (self.skydome, "S&ky dome"),
+                              (self.drift, "D&rift"), (self.site_editor, "Site && &limits")):
+            self.tabs.addTab(widget, title)
+        for panel in (self.tonight, self.skydome, self.drift):
+            panel.target_clicked.connect(self.select_target)
+        self.site_editor.site_edited.connect(self.document.replace_site)
+        self.drift.tolerance_changed.connect(self._on_tolerance_edited)
+
+        self.splitter = QSplitter(Qt.Orientation.Horizontal)
+        self.splitter.addWidget(left)
+        self.splitter.addWidget(self.tabs)
+        self.splitter.setStretchFactor(0, 5)
+        self.splitter.setStretchFactor(1, 7)
+        self.splitter.setSizes([600, 840])
+        self.splitter.setChildrenCollapsible(False)
+
+        central = QWidget()
+        layout = QVBoxLayout(central)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.setSpacing(0)
+        layout.addWidget(self.caution)
+        layout.addWidget(self.site_note)
+        layout.addWidget(self.night_bar)
+        layout.addWidget(self.splitter, 1)
+        self.setCentralWidget(central)
+        self.night_bar.night_edited.connect(self._on_night_edited)
+
+        # Bottom: the correction ledger.
+        self.ledger = LedgerPanel(self)
+        self.ledger_dock = QDockWidget("Correction ledger", self)
+        self.ledger_dock.setObjectName("ledgerDock")
+        ledger_scroll = QScrollArea()  # so the dock may be shorter than the ledger's full height
+        ledger_scroll.setWidget(self.ledger)
+        ledger_scroll.setWidgetResizable(True)
+        ledger_scroll.setFrameShape(QFrame.Shape.NoFrame)
+        self.ledger_dock.setWidget(ledger_scroll)
+        self.ledger_dock.setFeatures(QDockWidget.DockWidgetFeature.DockWidgetMovable
+                                     | QDockWidget.DockWidgetFeature.DockWidgetClosable)
+        self.addDockWidget(Qt.DockWidgetArea.BottomDockWidgetArea, self.ledger_dock)
+        self.resizeDocks([self.ledger_dock], [LEDGER_HEIGHT], Qt.Orientation.Vertical)
+
+        # Tab order: filter, table, night settings, tabs (the panels follow their own order).
+        bar = self.night_bar
+        chain = [self.filter_box, self.table, bar.date, bar.darkness, bar.min_alt,
+                 bar.max_airmass, bar.moon_sep, bar.moon_scaled, self.tabs]
+        for first, second in zip(chain, chain[1:]):
+            QWidget.setTabOrder(first, second)
+
+    def _build_status_bar(self) -> None:
+        status = self.statusBar()
+        self.progress = QProgressBar()
+        self.progress.setMaximumWidth(160)
+        self.progress.setRange(0, 0)
+        self.progress.setTextVisible(False)
+        self.progress_label = QLabel()
+        self.cancel_button = QPushButton("Cancel")
+        self.cancel_button.setToolTip("Stop the running computation")
+        self.cancel_button.clicked.connect(workers.tracker().cancel_all)
+        self.clocks = StatusClocks()
+        for widget in (self.progress_label, self.progress, self.cancel_button):
+            status.addPermanentWidget(widget)
+            widget.hide()
+        status.addPermanentWidget(self.clocks)
+        workers.tracker().changed.connect(self._on_tasks_changed)
+        workers.tracker().progressed.connect(self._on_task_progress)
+
+    def _connect_document(self) -> None:
+        doc = self.document
+        doc.changed.connect(self._schedule_recompute)
+        doc.rows_reset.connect(self._on_rows_reset)
+        doc.site_changed.connect(self._on_site_changed)
+        doc.night_changed.connect(self.night_bar.set_night)
+        doc.tolerance_changed.connect(self._on_tolerance_changed)
+        doc.dirty_changed.connect(lambda _d: self._update_title())
+        doc.path_changed.connect(lambda _p: self._update_title())
+
+    def showEvent(self, event):  # noqa: N802 (Qt name)
+        super().showEvent(event)
+        self.resizeDocks([self.ledger_dock], [LEDGER_HEIGHT], Qt.Orientation.Vertical)
+
+    # ================================================================== document views
+    def _refresh_document_views(self) -> None:
+        doc = self.document
+        self.night_bar.set_night(doc.night)
+        self._on_site_changed(doc.site)
+        self._on_tolerance_changed(doc.tolerance)
+        self._on_rows_reset()
+
+    def _on_site_changed(self, site) -> None:
+        self.caution.set_sun_avoidance(site.interlocks.sun_avoidance)
+        self.site_note.setVisible(self.document.has_placeholder_site)
+        self.clocks.set_site(site)
+        self.site_editor.set_site(site)
+
+    def _on_tolerance_changed(self, arcsec: float) -> None:
+        self.drift.set_tolerance(arcsec)
+
+    def _on_tolerance_edited(self, arcsec: float) -> None:
+        try:
+            self.document.change_tolerance(arcsec)
+        except ValueError as err:
+            self.show_message(str(err))
+
+    def _on_night_edited(self, night, field: str) -> None:
+        try:
+            self.document.change_night(night, field)
+        except ValueError as err:
+            self.show_message(f"Night settings: {err}")
+            self.night_bar.set_night(self.document.night)
+
+    def _on_rows_reset(self) -> None:
+        self._set_selected(None)
+        self._update_count()
+        self._targets_for_drift = None
+        if self.document.row_count():
+            # A selected target fills the ledger; the first row is as good a start as any.
+            first = self.proxy.index(0, 0)
+            self.table.setCurrentIndex(first)
+            self.table.selectRow(0)
+        self._pass_targets_to_drift()
+
+    def _pass_targets_to_drift(self) -> None:
+        targets = self.document.targets()
+        if targets is not self._targets_for_drift:
+            self._targets_for_drift = targets
+            self.drift.set_targets(targets)
+
+    def _update_count(self) -> None:
+        total = self.document.row_count()
+        shown = self.proxy.rowCount()
+        self.count_label.setText(f"{total} targets" if shown == total
+                                 else f"{shown} of {total} shown")
+
+    def _update_title(self) -> None:
+        name = os.path.basename(self.document.path) if self.document.path else "untitled"
+        self.setWindowTitle(f"{name}[*] — {APP_TITLE}")
+        self.setWindowModified(self.document.dirty)
+
+    # ================================================================== selection
+    def _on_current_row(self, current, _previous) -> None:
+        row = self.proxy.doc_row(current) if current.isValid() else None
+        self._set_selected(row)
+
+    def _set_selected(self, doc_row: int | None) -> None:
+        if doc_row == self.selected:
+            return
+        self.selected = doc_row
+        for panel in (self.tonight, self.skydome, self.drift):
+            panel.set_selected(doc_row)
+        if doc_row is None:
+            self.ledger.set_row(None)
+        else:
+            self.refresh_now()
+
+    def select_target(self, doc_row: int) -> None:
+        """Select a target by its document row (from a panel click): shown and current."""
+        if not 0 <= doc_row < self.document.row_count():
+            return
+        index = self.proxy.index_of(doc_row)
+        if not index.isValid():  # hidden by the filter: clear it so the target shows
+            self.filter_box.clear()
+            index = self.proxy.index_of(doc_row)
+        self.table.setCurrentIndex(index)
+        self.table.selectRow(index.row())
+        self.table.scrollTo(index)
+
+    def selected_rows(self) -> list[int]:
+        rows = {self.proxy.doc_row(i) for i in self.table.selectionModel().selectedRows()}
+        if not rows and self.table.currentIndex().isValid():
+            rows = {self.proxy.doc_row(self.table.currentIndex())}
+        return sorted(rows)
+
+    # ================================================================== recompute
+    def _schedule_recompute(self) -> None:
+        self.recompute_timer.start()
+        self._update_count()
+
+    def recompute(self) -> None:
+        """Start the night plan and the state now in workers (older runs are cancelled)."""
+        self.recompute_timer.stop()
+        doc = self.document
+        self._pass_targets_to_drift()
+        if self._plan_task is not None:
+            self._plan_task.cancel()
+        generation = doc.generation
+        if doc.row_count() == 0:
+            self._on_plan(generation, None)
+        else:
+            self._plan_task = workers.run_in_worker(
+                self, night_plan, doc.targets(), doc.site, doc.night,
+                on_done=lambda plan: self._on_plan(generation, plan),
+                on_error=lambda message: self._on_failed("Planning the night", message),
+                progress_label="Planning the night…")
+        self.refresh_now()
+
+    def refresh_now(self) -> None:
+        """Positions now for every target, and the selected target's correction ledger."""
+        doc = self.document
+        if self._now_task is not None:
+            self._now_task.cancel()
+        if doc.row_count() == 0:
+            self.model.set_computed(None)
+            return
+        generation = doc.generation
+        self._now_task = workers.run_in_worker(
+            self, now_state, doc.targets(), doc.site, "now", self.selected,
+            on_done=lambda state: self._on_now(generation, state),
+            on_error=lambda message: self._on_failed("Positions now", message),
+            progress_label="Positions now…")
+
+    def _on_plan(self, generation: int, plan) -> None:
+        if generation != self.document.generation:
+            return  # the document changed meanwhile; a newer run is on its way
+        self.plan, self._plan_generation = plan, generation
+        if plan is not None:
+            self.document.schedule = schedule_entries(plan)
+        for panel in (self.tonight, self.skydome):
+            panel.set_plan(plan)
+            panel.set_selected(self.selected)
+        self._show_computed()
+        if plan is not None:
+            scheduled = len(plan.schedule.index)
+            self.show_message(f"Night of {plan.night.date.isoformat()} planned: "
+                              f"{scheduled} blocks scheduled.", 5000)
+
+    def _on_now(self, generation: int, state) -> None:
+        if generation != self.document.generation:
+            return
+        self.now = state
+        self._show_computed()
+        if state.selected == self.selected:
+            self.ledger.set_row(state.ledger_row)
+        if state.earth_orientation_warning:
+            self.clocks.table_age.setToolTip(state.earth_orientation_warning)
+
+    def _show_computed(self) -> None:
+        now, plan = self.now, self.plan
+        if now is None or len(now.alt) != self.document.row_count():
+            return
+        tonight = None  # unknown until the plan of this very state arrives
+        if plan is not None and self._plan_generation == self.document.generation:
+            tonight = plan.windows.reason
+        self.model.set_computed(Computed(alt_now=now.alt, refused_now=now.refused,
+                                         tonight=tonight, drift=now.drift))
+
+    def _on_failed(self, what: str, message: str) -> None:
+        self.show_message(f"{what} failed: {message}", 10000)
+
+    def _on_tasks_changed(self) -> None:
+        t = workers.tracker()
+        busy = t.busy()
+        for widget in (self.progress_label, self.progress, self.cancel_button):
+            widget.setVisible(busy)
+        if busy:
+            self.progress.setRange(0, 0)
+            self.progress_label.setText(t.label())
+
+    def _on_task_progress(self, label: str, fraction: float) -> None:
+        self.progress.setRange(0, 1000)
+        self.progress.setValue(int(fraction * 1000))
+        self.progress_label.setText(label)
+
+    def computing(self) -> bool:
+        """True while a recompute is pending or running (tests and the screenshot wait)."""
+        return self.recompute_timer.isActive() or workers.tracker().busy()
+
+    # ================================================================== edits
+    def _on_edit_rejected(self, doc_row: int, key: str, reason: str) -> None:
+        self.show_message(f"Not changed — {reason}", 10000)
+        index = self.proxy.index_of(doc_row, [c.key for c in COLUMNS].index(key))
+        rect = self.table.visualRect(index)
+        QToolTip.showText(self.table.viewport().mapToGlobal(rect.bottomLeft())
+                          if rect.isValid() else QCursor.pos(), reason, self.table)
+
+    def add_target(self) -> None:
+        row = self.document.add_target()
+        self.filter_box.clear()
+        index = self.proxy.index_of(row)
+        self.table.setCurrentIndex(index)
+        self.table.scrollTo(index)
+        self.table.setFocus()
+        self.table.edit(index)
+
+    def remove_selected(self) -> None:
+        rows = self.selected_rows()
+        if rows:
+            self.document.remove_targets(rows)
+            self.show_message(f"Removed {len(rows)} target(s); Undo (Ctrl+Z) brings them back.")
+
+    def focus_filter(self) -> None:
+        self.filter_box.setFocus()
+        self.filter_box.selectAll()
+
+    def show_tab(self, i: int) -> None:
+        self.tabs.setCurrentIndex(i)
+        self.tabs.currentWidget().setFocus()
+
+    # ================================================================== theme, help, messages
+    def toggle_night_theme(self) -> None:
+        self.set_theme("light" if themes.current_theme() == "night" else "night")
+
+    def set_theme(self, theme: str, remember: bool = True) -> None:
+        theme = themes.apply_theme(QApplication.instance(), theme)
+        self.model.set_theme(theme)
+        action = self.actions_by_name["night"]
+        action.blockSignals(True)
+        action.setChecked(theme == "night")
+        action.blockSignals(False)
+        if remember:
+            themes.save_theme(self.settings, theme)
+
+    def show_about(self) -> None:
+        QMessageBox.about(self, "About Epochpoint",
+                          f"<b>Epochpoint {__version__}</b><br>Carries catalogue targets to "
+                          "the moment of observation, plans the night and hands corrected "
+                          "coordinates to the telescope.")
+
+    def show_message(self, text: str, timeout_ms: int = 8000) -> None:
+        self.statusBar().showMessage(text, timeout_ms)
+
+    def show_error(self, title: str, text: str) -> None:
+        """An error for the user: a message box when interactive, the status bar otherwise."""
+        self.show_message(f"{title}: {text}", 15000)
+        if self.interactive:
+            QMessageBox.warning(self, title, text)
+
+    def ask(self, title: str, text: str) -> bool:
+        answer = QMessageBox.question(self, title, text)
+        return answer == QMessageBox.StandardButton.Yes
+
+    # ================================================================== closing
+    def closeEvent(self, event):  # noqa: N802 (Qt name)
+        if not self.maybe_save():
+            event.ignore()
+            return
+        self.shutdown()
+        event.accept()
+
+    def shutdown(self) -> None:
+        """Stop timers and workers and remove the recovery file (an orderly exit)."""
+        for timer in (self.recompute_timer, self.now_timer, self.clocks.timer,
+                      self.autosaver.timer):
+            timer.stop()
+        self.autosaver.clear()  # saved or knowingly discarded; a crash never gets here
+        workers.wait_for_workers()
+

@@ -1,0 +1,136 @@
+"""The drift table: one row per target, columns from the drift result, raw numbers to sort.
+
+Over-tolerance rows carry a sign and a word ("▲ over") and bold type, so the flag never
+depends on colour alone.
+"""
+from __future__ import annotations
+
+import numpy as np
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, QSortFilterProxyModel, Qt
+from PySide6.QtGui import QFont
+
+from ...io.angles import format_dec_dms, format_ra_hms
+
+OVER_MARK = "▲ over"
+
+# Column key, header, tooltip.
+COLUMNS = (
+    ("flag", "", "▲ over: drift beyond the tolerance"),
+    ("name", "Target", ""),
+    ("drift", "Drift (″)", "Angle between catalogue and propagated position"),
+    ("drift_rate", "Rate (″/yr)", "How fast the drift grows"),
+    ("crossing", "Crossing (±1σ)", "When the drift equals the tolerance (1σ uncertainty)"),
+    ("epoch", "Epoch", "Catalogue epoch (Julian year)"),
+    ("catalogue", "Catalogue RA, Dec", "Catalogue position (ICRS) at the catalogue epoch"),
+    ("propagated", "RA, Dec at the date", "Propagated barycentric position (ICRS) at the date"),
+)
+KEYS = [c[0] for c in COLUMNS]
+
+
+class DriftModel(QAbstractTableModel):
+    """The drift result as a table; sort role gives raw numbers."""
+
+    SORT_ROLE = Qt.ItemDataRole.UserRole
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.targets = None
+        self.result = None
+
+    def set_data(self, targets, result) -> None:
+        self.beginResetModel()
+        self.targets, self.result = targets, result
+        self.endResetModel()
+
+    def rowCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() or self.targets is None else len(self.targets)
+
+    def columnCount(self, parent=QModelIndex()):  # noqa: N802
+        return 0 if parent.isValid() else len(COLUMNS)
+
+    def headerData(self, section, orientation, role=Qt.ItemDataRole.DisplayRole):  # noqa: N802
+        if orientation != Qt.Orientation.Horizontal:
+            return None
+        if role == Qt.ItemDataRole.DisplayRole:
+            return COLUMNS[section][1]
+        if role == Qt.ItemDataRole.ToolTipRole:
+            return COLUMNS[section][2] or None
+        return None
+
+    def over(self, row: int) -> bool:
+        return self.result is not None and bool(self.result["drift"]["over_tolerance"][row])
+
+    def value(self, row: int, key: str):
+        t, r = self.targets, self.result
+        if key == "name":
+            return str(t.names()[row])
+        if key == "epoch":
+            return float(t.epoch[row])
+        if key == "catalogue":
+            return (float(t.ra[row]), float(t.dec[row]))
+        if r is None:
+            return None
+        if key == "propagated":
+            return (float(r["ra_propagated"][row]), float(r["dec_propagated"][row]))
+        if key == "flag":
+            return self.over(row)
+        return r["drift"][key][row]
+
+    def data(self, index, role=Qt.ItemDataRole.DisplayRole):
+        if not index.isValid():
+            return None
+        row, key = index.row(), KEYS[index.column()]
+        value = self.value(row, key)
+        if role == Qt.ItemDataRole.DisplayRole:
+            return self._text(row, key, value)
+        if role == self.SORT_ROLE:
+            if key == "crossing":
+                return value or ""
+            if isinstance(value, tuple):
+                return value[0]  # positions sort by right ascension
+            return value if not isinstance(value, (bool, np.bool_)) else int(value)
+        if role == Qt.ItemDataRole.FontRole and self.over(row):
+            font = QFont()
+            font.setBold(True)
+            return font
+        if role == Qt.ItemDataRole.TextAlignmentRole and key not in ("name", "flag", "crossing"):
+            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        if role == Qt.ItemDataRole.AccessibleTextRole and key == "flag":
+            return "over the tolerance" if value else "within the tolerance"
+        return None
+
+    def _text(self, row: int, key: str, value) -> str:
+        if key == "crossing" and self.result is not None:
+            return self._crossing_text(row, value)
+        if value is None:
+            return "…"
+        if key == "flag":
+            return OVER_MARK if value else ""
+        if key in ("catalogue", "propagated"):
+            return f"{format_ra_hms(value[0], 2)}  {format_dec_dms(value[1], 1)}"
+        if key == "epoch":
+            return f"{value:.2f}"
+        if key == "drift":
+            return f"{value:.3f}"
+        if key == "drift_rate":
+            return f"{value:.4f}"
+        return str(value)
+
+    def _crossing_text(self, row: int, value) -> str:
+        d = self.result["drift"]
+        if not value:
+            # drift() gives no date for a target that does not move or only beyond 10000 years.
+            return "never (no motion)" if d["drift_rate"][row] == 0 else "beyond 10000 yr"
+        sigma = d["crossing_sigma_days"][row]
+        if not np.isfinite(sigma):
+            return value[:10]
+        return value[:10] + (f" ± {sigma:.1f} d" if sigma < 10 else f" ± {sigma:.0f} d")
+
+
+class DriftSortProxy(QSortFilterProxyModel):
+    def lessThan(self, left, right):  # noqa: N802
+        a, b = left.data(DriftModel.SORT_ROLE), right.data(DriftModel.SORT_ROLE)
+        try:
+            return (a if a is not None else -np.inf) < (b if b is not None else -np.inf)
+        except TypeError:
+            return str(a) < str(b)

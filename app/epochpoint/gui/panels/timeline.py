@@ -1,0 +1,203 @@
+"""The schedule timeline: the night's observing blocks on a local-time axis.
+
+A light painted widget under the night chart: the darkness levels as bands, each scheduled
+block as a box named for its target (in the colour of its line on the chart), hourly ticks
+in the site's local time and a marker for the present moment. Clicking a block selects it.
+"""
+from __future__ import annotations
+
+import datetime as dt
+
+from PySide6.QtCore import QRectF, Qt, QTimer, Signal
+from PySide6.QtGui import QColor, QFont, QPainter, QPen
+from PySide6.QtWidgets import QToolTip, QWidget
+
+from ...charts.chart_style import is_dark, resolve_style
+from ...charts.night_chart import DARKNESS_SPANS, darkness_spans_s, time_span
+from ...charts.plan_clock import local_datetime, seconds_of
+
+BAND_HEIGHT_PX = 46
+TICK_SPACE_PX = 18
+NOW_REFRESH_MS = 60_000
+
+
+class ScheduleTimeline(QWidget):
+    """Blocks of a plan's schedule against time; emits block_clicked(target index)."""
+
+    block_clicked = Signal(int)
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.plan = None
+        self.selected = None
+        self.colours: dict = {}
+        self.style = None
+        self.margins_px = (50, 12)
+        self.span = (0.0, 1.0)
+        self.setMinimumHeight(BAND_HEIGHT_PX + TICK_SPACE_PX + 8)
+        self.setMaximumHeight(BAND_HEIGHT_PX + TICK_SPACE_PX + 30)
+        self.setMouseTracking(True)
+        self.setToolTip("")
+        self._clock = QTimer(self)
+        self._clock.timeout.connect(self.update)
+        self._clock.start(NOW_REFRESH_MS)
+
+    # -- inputs -----------------------------------------------------------------------
+    def set_plan(self, plan) -> None:
+        self.plan = plan
+        if plan is not None:
+            self.span = time_span(plan)
+        self.update()
+
+    def set_selected(self, index) -> None:
+        self.selected = None if index is None else int(index)
+        self.update()
+
+    def set_colours(self, colours: dict) -> None:
+        """Colour of each target's block (target index -> colour), matching the chart."""
+        self.colours = dict(colours)
+        self.update()
+
+    def set_chart_style(self, style: dict | None) -> None:
+        self.style = style
+        self.update()
+
+    def set_margins(self, left_px: int, right_px: int) -> None:
+        """Line the time axis up with the chart's axes above."""
+        self.margins_px = (max(0, int(left_px)), max(0, int(right_px)))
+        self.update()
+
+    # -- geometry -----------------------------------------------------------------------
+    def x_of(self, seconds: float) -> float:
+        left, right = self.margins_px
+        width = max(1, self.width() - left - right)
+        start, end = self.span
+        return left + (seconds - start) / (end - start) * width
+
+    def seconds_at_x(self, x_px: float) -> float:
+        left, right = self.margins_px
+        width = max(1, self.width() - left - right)
+        start, end = self.span
+        return start + (x_px - left) / width * (end - start)
+
+    def block_rects(self) -> list:
+        """(target index, QRectF, start_s, end_s) of every scheduled block."""
+        if self.plan is None:
+            return []
+        out = []
+        s = self.plan.schedule
+        for i, start, end in zip(s.index, s.start_s, s.end_s):
+            x0, x1 = self.x_of(start), self.x_of(end)
+            out.append((int(i), QRectF(x0, 6.0, max(2.0, x1 - x0), BAND_HEIGHT_PX - 12.0),
+                        float(start), float(end)))
+        return out
+
+    def block_at(self, x_px: float, y_px: float):
+        for i, rect, start, end in self.block_rects():
+            if rect.adjusted(-1, -4, 1, 4).contains(x_px, y_px):
+                return i, start, end
+        return None
+
+    # -- painting -----------------------------------------------------------------------
+    def paintEvent(self, event):  # noqa: N802 (Qt name)
+        painter = QPainter(self)
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+        look = resolve_style(self.style)
+        palette = self.palette()
+        base, text = palette.base().color(), palette.text().color()
+        painter.fillRect(self.rect(), base)
+        if self.plan is None:
+            painter.setPen(text)
+            painter.drawText(self.rect(), Qt.AlignmentFlag.AlignCenter, "no plan")
+            return
+        band = QRectF(self.x_of(self.span[0]), 0.0, self.x_of(self.span[1]) - self.x_of(
+            self.span[0]), BAND_HEIGHT_PX)
+        painter.fillRect(band, QColor(look["background"]))
+        for level, a, b in darkness_spans_s(self.plan):
+            colour = QColor(look["shades"][DARKNESS_SPANS.index(level)])
+            painter.fillRect(QRectF(self.x_of(a), 0.0, self.x_of(b) - self.x_of(a),
+                                    BAND_HEIGHT_PX), colour)
+        self._paint_blocks(painter, look)
+        self._paint_ticks(painter, text)
+        self._paint_now(painter, look)
+
+    def _paint_blocks(self, painter: QPainter, look: dict) -> None:
+        names = self.plan.windows.names
+        font = QFont(self.font())
+        dark = is_dark(look)
+        # Names on the blocks: the background colour on a dark theme's bright blocks.
+        ink = QColor(look["background"] if dark else look["foreground"])
+        for i, rect, _, _ in self.block_rects():
+            fill = QColor(self.colours.get(i, look["muted"]))
+            fill.setAlphaF(1.0 if dark else 0.75)
+            painter.setPen(QPen(QColor(look["background"]), 1.0))
+            painter.setBrush(fill)
+            painter.drawRoundedRect(rect, 3, 3)
+            if i == self.selected:
+                painter.setPen(QPen(QColor(look["accent"]), 3.0))
+                painter.setBrush(Qt.BrushStyle.NoBrush)
+                painter.drawRoundedRect(rect.adjusted(-2, -3, 2, 3), 4, 4)
+            font.setBold(i == self.selected)
+            painter.setFont(font)
+            label = painter.fontMetrics().elidedText(str(names[i]), Qt.TextElideMode.ElideRight,
+                                                     int(rect.width()) - 4)
+            if label and label != "…":
+                painter.setPen(ink)
+                painter.save()
+                painter.translate(rect.center())
+                painter.rotate(-90 if rect.width() < rect.height() * 0.6 else 0)
+                if rect.width() < rect.height() * 0.6:
+                    label = painter.fontMetrics().elidedText(
+                        str(names[i]), Qt.TextElideMode.ElideRight, int(rect.height()) - 2)
+                w = painter.fontMetrics().horizontalAdvance(label)
+                painter.drawText(int(-w / 2), int(painter.fontMetrics().ascent() / 2 - 1), label)
+                painter.restore()
+
+    def _paint_ticks(self, painter: QPainter, text: QColor) -> None:
+        painter.setPen(text)
+        font = QFont(self.font())
+        font.setBold(False)
+        painter.setFont(font)
+        first = local_datetime(self.plan, self.span[0])
+        hour = first.replace(minute=0, second=0, microsecond=0) + dt.timedelta(hours=1)
+        while True:
+            s = seconds_of(self.plan, hour)
+            if s > self.span[1]:
+                break
+            x = self.x_of(s)
+            painter.drawLine(int(x), BAND_HEIGHT_PX, int(x), BAND_HEIGHT_PX + 4)
+            label = f"{hour:%H}"
+            w = painter.fontMetrics().horizontalAdvance(label)
+            painter.drawText(int(x - w / 2), BAND_HEIGHT_PX + 4 + painter.fontMetrics().ascent(),
+                             label)
+            hour += dt.timedelta(hours=1)
+        zone = local_datetime(self.plan, self.span[0]).tzname()
+        painter.drawText(2, BAND_HEIGHT_PX + 4 + painter.fontMetrics().ascent(), f"{zone}")
+
+    def _paint_now(self, painter: QPainter, look: dict) -> None:
+        now = seconds_of(self.plan, dt.datetime.now(dt.timezone.utc))
+        if self.span[0] <= now <= self.span[1]:
+            x = self.x_of(now)
+            painter.setPen(QPen(QColor(look["accent"]), 2.0))
+            painter.drawLine(int(x), 0, int(x), BAND_HEIGHT_PX)
+
+    # -- mouse --------------------------------------------------------------------------
+    def mousePressEvent(self, event):  # noqa: N802
+        if event.button() == Qt.MouseButton.LeftButton:
+            hit = self.block_at(event.position().x(), event.position().y())
+            if hit is not None:
+                self.block_clicked.emit(hit[0])
+        super().mousePressEvent(event)
+
+    def mouseMoveEvent(self, event):  # noqa: N802
+        if self.plan is None:
+            return
+        hit = self.block_at(event.position().x(), event.position().y())
+        if hit is None:
+            QToolTip.hideText()
+            return
+        i, start, end = hit
+        a, b = local_datetime(self.plan, start), local_datetime(self.plan, end)
+        QToolTip.showText(event.globalPosition().toPoint(),
+                          f"{self.plan.windows.names[i]}: {a:%H:%M}–{b:%H:%M} local "
+                          f"({(end - start) / 60:.0f} min)", self)

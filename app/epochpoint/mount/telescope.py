@@ -1,0 +1,489 @@
+"""A telescope mount on an INDI server: find it, connect it, read its status, send it our
+site and clock, slew or sync it to a target's place behind the site's interlocks, follow the
+motion, refine once, and abort.
+
+INDI standard telescope properties used (INDI Library "Standard Properties"):
+CONNECTION (CONNECT, DISCONNECT); DRIVER_INFO.DRIVER_INTERFACE (bit 0: telescope);
+EQUATORIAL_EOD_COORD (RA in hours, DEC in degrees, true equator and equinox of date);
+EQUATORIAL_COORD (the same at J2000); ON_COORD_SET (TRACK, SLEW, SYNC);
+TELESCOPE_ABORT_MOTION (ABORT); TELESCOPE_PARK (PARK); TELESCOPE_TRACK_STATE (TRACK_ON);
+TARGET_EOD_COORD; GEOGRAPHIC_COORD (LAT, LONG east 0..360, ELEV metres); TIME_UTC (UTC,
+OFFSET hours). A controller converts of-date coordinates with its own site and clock, so
+`status()` reports them for comparison with ours and `push_site()` sends ours.
+
+Threads: a GUI worker calls `slew_to_target()` (it blocks, always with a deadline); `abort()`
+may be called meanwhile from any other thread, and the waiting slew then sees the motion end.
+Nothing here retries after a lost connection.
+"""
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from typing import Callable
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
+
+import numpy as np
+
+from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
+from ..core.site import Site
+from ..core.targets import Targets
+from ..core.vectors import separation, unit_vectors
+from .errors import IndiTimeout, InterlockRefused, MountFailed
+from .indi_client import IndiClient, Vector, parse_address
+from .pointing import Pointing, pointing_for
+
+EOD_COORD = "EQUATORIAL_EOD_COORD"
+J2000_COORD = "EQUATORIAL_COORD"
+TELESCOPE_INTERFACE_BIT = 1  # INDI DRIVER_INTERFACE: TELESCOPE_INTERFACE = 1 << 0
+FRAME_TEXT = {EOD_COORD: "true equator and equinox of date",
+              J2000_COORD: "mean equator and equinox of J2000.0 (geocentric astrometric)"}
+CAUTION = ("Caution: the mount is about to move. Keep people, hands and cables clear of it, "
+           "and keep the optics capped unless you are sure no part of the path passes near "
+           "the Sun.")
+# A device must show a command in progress (Busy) or its failure (Alert) this soon.
+TAKE_UP_S = 5.0
+# Defs arriving this close together belong to one burst (after getProperties or CONNECT).
+QUIET_S = 0.3
+SETTLE_LIMIT_S = 2.0
+# Within this of the command, an Ok without a Busy means the mount was already there.
+ARRIVED_ARCSEC = 60.0
+
+Notify = Callable[[str], None]
+
+
+def _silent(_text: str) -> None:
+    pass
+
+
+@dataclass(frozen=True)
+class MountStatus:
+    """What the device reports (angles in degrees, longitude east-positive in -180..180)."""
+
+    device: str
+    address: str
+    connected: bool
+    coordinate_property: str | None
+    ra_deg: float | None
+    dec_deg: float | None
+    motion_state: str | None  # the coordinate property's state: Idle, Ok, Busy or Alert
+    tracking: bool | None
+    parked: bool | None
+    target_ra_deg: float | None  # TARGET_EOD_COORD, the last target it took
+    target_dec_deg: float | None
+    latitude: float | None
+    longitude: float | None
+    height: float | None
+    time_utc: str | None  # TIME_UTC as the device last reported it, with a Z
+    utc_offset_h: float | None
+
+
+@dataclass(frozen=True)
+class SlewReport:
+    """The outcome of one slew or sync (angles in degrees, residuals in arcsec)."""
+
+    target: str
+    action: str  # "slew" or "sync"
+    coordinate_property: str
+    commanded_ra_deg: float  # the last coordinates sent, in the property's frame
+    commanded_dec_deg: float
+    pointing: Pointing  # the target's place when last commanded
+    final_state: str | None  # Ok, Idle or Alert; None when not waited for
+    reported_ra_deg: float | None
+    reported_dec_deg: float | None
+    first_residual_arcsec: float | None  # after the first move
+    residual_arcsec: float | None  # after the last move
+    refined: bool
+    tolerance_arcsec: float
+    aborted: bool = False  # an abort() ended the motion while it was followed
+
+    @property
+    def within_tolerance(self) -> bool | None:
+        if self.residual_arcsec is None:
+            return None
+        return self.residual_arcsec <= self.tolerance_arcsec
+
+
+@dataclass(frozen=True)
+class _Command:
+    coordinate_property: str
+    ra_deg: float
+    dec_deg: float
+    serial: int  # the client's last update serial before the command
+    sync: bool
+
+
+def angular_distance_arcsec(ra1_deg, dec1_deg, ra2_deg, dec2_deg) -> float:
+    """Angle between two directions given as right ascension and declination (arcsec)."""
+    a = unit_vectors(np.atleast_1d(ra1_deg) * DEG_TO_RAD, np.atleast_1d(dec1_deg) * DEG_TO_RAD)
+    b = unit_vectors(np.atleast_1d(ra2_deg) * DEG_TO_RAD, np.atleast_1d(dec2_deg) * DEG_TO_RAD)
+    return float(separation(a, b)[0] * RAD_TO_ARCSEC)
+
+
+def _is_telescope(client: IndiClient, device: str) -> bool:
+    props = client.vectors(device)
+    if EOD_COORD in props or J2000_COORD in props:
+        return True
+    info = props.get("DRIVER_INFO")
+    try:
+        interface = int(float(info.values.get("DRIVER_INTERFACE", "0"))) if info else 0
+    except ValueError:
+        interface = 0
+    return bool(interface & TELESCOPE_INTERFACE_BIT)
+
+
+def _settle(client: IndiClient, limit_s: float = SETTLE_LIMIT_S) -> None:
+    """Wait until definitions pause for QUIET_S (a burst has arrived), at most limit_s."""
+    end = time.monotonic() + limit_s
+    while time.monotonic() < end:
+        before = client.last_definition
+        try:
+            client.wait_for(lambda: client.last_definition != before,
+                            min(QUIET_S, max(0.0, end - time.monotonic())), "more definitions")
+        except IndiTimeout:
+            return
+
+
+def find_telescope(client: IndiClient, device: str | None, timeout_s: float) -> str:
+    """The telescope device's name: `device` if given, else the only telescope defined."""
+    if device:
+        client.wait_for(lambda: device in client.devices(), timeout_s,
+                        f"device {device!r} to appear")
+        _settle(client)
+        if not _is_telescope(client, device):
+            raise MountFailed(f"device {device!r} at {client.address} is not a telescope")
+        return device
+
+    def telescopes():
+        return [d for d in client.devices() if _is_telescope(client, d)]
+
+    try:
+        client.wait_for(telescopes, timeout_s, "a telescope device")
+    except IndiTimeout:
+        seen = ", ".join(client.devices()) or "none"
+        raise MountFailed(f"no telescope device at {client.address} within {timeout_s:g} s "
+                          f"(devices seen: {seen})") from None
+    _settle(client)
+    found = telescopes()
+    if len(found) > 1:
+        raise MountFailed(f"several telescope devices at {client.address} ({', '.join(found)}); "
+                          "choose one with --device")
+    return found[0]
+
+
+class Telescope:
+    """One telescope device on an INDI server. Thread-safe; use as a context manager."""
+
+    def __init__(self, client: IndiClient, device: str):
+        self.client, self.device = client, device
+        self.aborts = 0  # how many aborts were sent, so a waiting slew knows it was stopped
+
+    @classmethod
+    def open(cls, address: str, device: str | None = None, *, timeout_s: float = 10.0,
+             connect_device: bool = True, notify: Notify = _silent) -> "Telescope":
+        """Connect to the server at "HOST:PORT", find the telescope and (by default) CONNECT it."""
+        host, port = parse_address(address)
+        client = IndiClient(host, port, connect_timeout_s=min(timeout_s, 5.0)).open()
+        try:
+            scope = cls(client, find_telescope(client, device, timeout_s))
+            if connect_device:
+                scope.connect(timeout_s, notify)
+        except BaseException:
+            client.close()
+            raise
+        return scope
+
+    def close(self) -> None:
+        self.client.close()
+
+    def __enter__(self) -> "Telescope":
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    def _vector(self, name: str) -> Vector | None:
+        return self.client.vector(self.device, name)
+
+    def _state(self, name: str) -> str | None:
+        v = self._vector(name)
+        return None if v is None else v.state
+
+    @property
+    def connected(self) -> bool:
+        connection = self._vector("CONNECTION")
+        if connection is None:  # a driver without a CONNECTION switch is always on
+            return self.coordinate_property() is not None
+        return bool(connection.values.get("CONNECT")) and connection.state != "Alert"
+
+    def coordinate_property(self) -> str | None:
+        """EQUATORIAL_EOD_COORD when the device has it, else EQUATORIAL_COORD, else None."""
+        for name in (EOD_COORD, J2000_COORD):
+            if self._vector(name) is not None:
+                return name
+        return None
+
+    def connect(self, timeout_s: float = 10.0, notify: Notify = _silent) -> None:
+        """CONNECT the device unless it already is; wait for its coordinates to be defined."""
+        if self.connected and self.coordinate_property() is not None:
+            return
+        if self._vector("CONNECTION") is None:
+            raise MountFailed(f"device {self.device!r} has neither coordinates nor a "
+                              "CONNECTION switch")
+        notify(f"Connecting device {self.device} ...")
+        serial = self.client.send_new(self.device, "CONNECTION",
+                                      {"CONNECT": True, "DISCONNECT": False})
+
+        def failed():
+            return "Alert" in self.client.states_since(self.device, "CONNECTION", serial)
+
+        self.client.wait_for(lambda: failed() or (self.connected and self.coordinate_property()),
+                             timeout_s, f"device {self.device} to connect")
+        if failed():
+            raise MountFailed(f"device {self.device} could not connect: {self.last_message()}")
+        _settle(self.client)
+
+    def last_message(self) -> str:
+        """The device's latest message, for error text."""
+        mine = [m for m in self.client.messages() if m.startswith(self.device + ":")]
+        return mine[-1].split(":", 1)[1].strip() if mine else "no reason given"
+
+    # -- status and site --------------------------------------------------------------------
+
+    def status(self) -> MountStatus:
+        """What the device reports now (reads only)."""
+        def number(prop, member):
+            v = self._vector(prop)
+            value = v.values.get(member) if v is not None else None
+            return float(value) if value is not None and np.isfinite(value) else None
+
+        def switch(prop, member):
+            v = self._vector(prop)
+            return None if v is None or member not in v.values else bool(v.values[member])
+
+        coords = self.coordinate_property()
+        ra_h = number(coords, "RA") if coords else None
+        target_ra_h = number("TARGET_EOD_COORD", "RA")
+        longitude = number("GEOGRAPHIC_COORD", "LONG")
+        clock = self._vector("TIME_UTC")
+        time_utc = clock.values.get("UTC") if clock is not None else None
+        try:
+            offset = float(clock.values.get("OFFSET")) if clock is not None else None
+        except (TypeError, ValueError):
+            offset = None
+        return MountStatus(
+            device=self.device, address=self.client.address, connected=self.connected,
+            coordinate_property=coords, ra_deg=None if ra_h is None else ra_h * 15.0,
+            dec_deg=number(coords, "DEC") if coords else None,
+            motion_state=self._vector(coords).state if coords else None,
+            tracking=switch("TELESCOPE_TRACK_STATE", "TRACK_ON"),
+            parked=switch("TELESCOPE_PARK", "PARK"),
+            target_ra_deg=None if target_ra_h is None else target_ra_h * 15.0,
+            target_dec_deg=number("TARGET_EOD_COORD", "DEC"),
+            latitude=number("GEOGRAPHIC_COORD", "LAT"),
+            longitude=None if longitude is None else (longitude + 180.0) % 360.0 - 180.0,
+            height=number("GEOGRAPHIC_COORD", "ELEV"),
+            time_utc=(time_utc.rstrip("Z") + "Z") if time_utc else None, utc_offset_h=offset)
+
+    def push_site(self, site: Site, timeout_s: float = 10.0, notify: Notify = _silent) -> None:
+        """Send our site (GEOGRAPHIC_COORD) and clock (TIME_UTC with the site's UTC offset)."""
+        for name in ("GEOGRAPHIC_COORD", "TIME_UTC"):
+            if self._vector(name) is None:
+                raise MountFailed(f"device {self.device} has no {name}; cannot send our site")
+        self._set_and_wait("GEOGRAPHIC_COORD",
+                           {"LAT": site.latitude, "LONG": site.longitude % 360.0,
+                            "ELEV": site.height}, timeout_s)
+        now = datetime.now(timezone.utc)
+        self._set_and_wait("TIME_UTC", {"UTC": now.strftime("%Y-%m-%dT%H:%M:%S"),
+                                        "OFFSET": f"{_utc_offset_hours(site, now):.2f}"},
+                           timeout_s)
+        notify(f"Sent our site (lat {site.latitude:+.5f}, lon {site.longitude:+.5f}, "
+               f"{site.height:.0f} m) and clock ({now:%Y-%m-%dT%H:%M:%S}Z) to {self.device}.")
+
+    def _set_and_wait(self, name: str, values: dict, timeout_s: float) -> None:
+        serial = self.client.send_new(self.device, name, values)
+        states = self.client.wait_for(
+            lambda: [s for s in self.client.states_since(self.device, name, serial)
+                     if s in ("Ok", "Alert", "Idle")], timeout_s, f"{self.device} to take {name}")
+        if states[-1] == "Alert":
+            raise MountFailed(f"device {self.device} refused {name}: {self.last_message()}")
+
+    # -- motion -----------------------------------------------------------------------------
+
+    def abort(self, timeout_s: float = 5.0) -> str | None:
+        """Send TELESCOPE_ABORT_MOTION and wait until the coordinates are no longer Busy.
+
+        Always allowed, whatever the interlocks say. Returns the coordinates' state then.
+        """
+        if self._vector("TELESCOPE_ABORT_MOTION") is None:
+            raise MountFailed(f"device {self.device} has no TELESCOPE_ABORT_MOTION")
+        self.aborts += 1
+        self.client.send_new(self.device, "TELESCOPE_ABORT_MOTION", {"ABORT": True})
+        coords = self.coordinate_property()
+        if coords is None:
+            return None
+        return self.client.wait_for(lambda: self._state(coords) != "Busy" and self._state(coords),
+                                    timeout_s, "the motion to stop")
+
+    def command(self, pointing: Pointing, sync: bool = False) -> _Command:
+        """Send ON_COORD_SET (TRACK, or SLEW without it; SYNC) and the target's coordinates.
+
+        The caller has checked the interlocks; this only refuses a parked mount.
+        """
+        coords = self.coordinate_property()
+        if coords is None:
+            raise MountFailed(f"device {self.device} has no {EOD_COORD} or {J2000_COORD}")
+        park = self._vector("TELESCOPE_PARK")
+        if park is not None and park.values.get("PARK"):
+            raise MountFailed(f"the mount {self.device} is parked; unpark it first")
+        on_set = self._vector("ON_COORD_SET")
+        if on_set is None:
+            raise MountFailed(f"device {self.device} has no ON_COORD_SET")
+        mode = "SYNC" if sync else ("TRACK" if "TRACK" in on_set.values else "SLEW")
+        if mode not in on_set.values:
+            raise MountFailed(f"device {self.device} cannot {mode.lower()}")
+        self.client.send_new(self.device, "ON_COORD_SET", {m: m == mode for m in on_set.values})
+        if coords == EOD_COORD:
+            ra_deg, dec_deg = pointing.ra_apparent_deg, pointing.dec_apparent_deg
+        else:
+            ra_deg, dec_deg = pointing.ra_j2000_deg, pointing.dec_j2000_deg
+        serial = self.client.send_new(self.device, coords, {"RA": ra_deg / 15.0, "DEC": dec_deg})
+        return _Command(coords, ra_deg, dec_deg, serial, sync)
+
+    def _offset_arcsec(self, command: _Command) -> float:
+        v = self._vector(command.coordinate_property)
+        return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"],
+                                       command.ra_deg, command.dec_deg)
+
+    def wait_until_ended(self, command: _Command, timeout_s: float) -> str:
+        """Follow the coordinates' state until the command ended: Ok, Idle (stopped) or Alert.
+
+        A slew must show Busy (or Alert) within TAKE_UP_S, unless the mount reports Ok at the
+        target already; a sync ends with the first answer at the target.
+        """
+        device, prop = self.device, command.coordinate_property
+        deadline = time.monotonic() + timeout_s
+        log = lambda: self.client.states_since(device, prop, command.serial)  # noqa: E731
+        if command.sync:
+            def answered():
+                if "Alert" in log():
+                    return "Alert"
+                state = self._state(prop)
+                at_target = self._offset_arcsec(command) < ARRIVED_ARCSEC
+                return log() and state != "Busy" and at_target and state
+            return self.client.wait_for(answered, timeout_s, f"{device} to sync")
+        try:
+            self.client.wait_for(lambda: {"Busy", "Alert"} & set(log()),
+                                 min(TAKE_UP_S, timeout_s), f"{device} to start the slew")
+        except IndiTimeout:
+            if self._state(prop) == "Ok" and self._offset_arcsec(command) < ARRIVED_ARCSEC:
+                return "Ok"
+            raise MountFailed(f"device {device} did not start the slew within "
+                              f"{min(TAKE_UP_S, timeout_s):g} s") from None
+        if "Alert" in log():
+            return "Alert"
+        remaining = max(0.0, deadline - time.monotonic())
+        try:
+            return self.client.wait_for(lambda: self._state(prop) != "Busy" and self._state(prop),
+                                        remaining, f"{device} to end the slew")
+        except IndiTimeout:
+            raise IndiTimeout(f"the slew of {device} did not end within {timeout_s:g} s; it may "
+                              "still be moving (abort stops it)") from None
+
+
+def _utc_offset_hours(site: Site, instant: datetime) -> float:
+    try:
+        zone = ZoneInfo(site.timezone)
+    except (ZoneInfoNotFoundError, ValueError):
+        return 0.0
+    return instant.astimezone(zone).utcoffset().total_seconds() / 3600.0
+
+
+def _place_text(prop: str, ra_deg: float, dec_deg: float) -> str:
+    from ..io import format_dec_dms, format_ra_hms
+
+    return (f"RA {format_ra_hms(ra_deg, 2)} Dec {format_dec_dms(dec_deg, 1)} "
+            f"({FRAME_TEXT[prop]}) via {prop}")
+
+
+def checked_pointing(targets: Targets, site: Site, name: str, when="now") -> Pointing:
+    """The target's place now, or InterlockRefused with the reason (nothing is sent)."""
+    pointing = pointing_for(targets, site, name, when)
+    if not pointing.allowed:
+        raise InterlockRefused(name, pointing.refusal)
+    return pointing
+
+
+def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
+                   sync: bool = False, wait: bool = False, timeout_s: float = 120.0,
+                   tolerance_arcsec: float = 2.0, notify: Notify = _silent) -> SlewReport:
+    """Point the mount at target `name`: interlocks first, then slew (TRACK) or sync.
+
+    With wait, follow the motion until it ends; when the reported coordinates differ from the
+    target's place by more than tolerance_arcsec, issue one refining slew (interlocks checked
+    again) and report the residual. An abort() from another thread while this waits ends the
+    slew quietly: no refinement, `aborted` set. Raises InterlockRefused (nothing sent),
+    ConnectionLost, IndiTimeout or MountFailed (Alert, parked, no such property).
+    """
+    action = "sync" if sync else "slew"
+    aborts_before = scope.aborts
+    stopped = lambda: scope.aborts != aborts_before  # noqa: E731
+    pointing = checked_pointing(targets, site, name)
+    notify(CAUTION)
+    command = scope.command(pointing, sync=sync)
+    started = time.monotonic()
+    notify(f"{action.capitalize()} {name}: "
+           f"{_place_text(command.coordinate_property, command.ra_deg, command.dec_deg)}; "
+           f"alt {pointing.alt_deg:.2f} az {pointing.az_deg:.2f} deg at {pointing.time}")
+    report = dict(target=name, action=action, coordinate_property=command.coordinate_property,
+                  final_state=None, reported_ra_deg=None, reported_dec_deg=None,
+                  first_residual_arcsec=None, residual_arcsec=None, refined=False,
+                  tolerance_arcsec=tolerance_arcsec)
+    if not wait:
+        return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
+                          pointing=pointing, **report)
+
+    state = _follow(scope, command, timeout_s, action, started, notify, stopped)
+    residual = _residual(scope, command, targets, site, name)
+    report.update(first_residual_arcsec=residual, residual_arcsec=residual, final_state=state,
+                  aborted=stopped())
+    # Refine only a slew that ended normally: never move again after an abort.
+    if not sync and state == "Ok" and not stopped() and residual > tolerance_arcsec:
+        notify(f"Ended {residual:.2f} arcsec from the target (tolerance "
+               f"{tolerance_arcsec:g}): one refining slew.")
+        pointing = checked_pointing(targets, site, name)
+        command = scope.command(pointing, sync=False)
+        state = _follow(scope, command, timeout_s, "refining slew", time.monotonic(), notify,
+                        stopped)
+        residual = _residual(scope, command, targets, site, name)
+        report.update(residual_arcsec=residual, final_state=state, refined=True,
+                      aborted=stopped())
+    v = scope.client.vector(scope.device, command.coordinate_property)
+    report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
+    return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
+                      pointing=pointing, **report)
+
+
+def _follow(scope: Telescope, command: _Command, timeout_s: float, what: str, started: float,
+            notify: Notify, stopped: Callable[[], bool]) -> str:
+    state = scope.wait_until_ended(command, timeout_s)
+    elapsed = time.monotonic() - started
+    if stopped():
+        notify(f"The {what} was stopped by an abort after {elapsed:.1f} s ({state}).")
+    elif state == "Alert":
+        raise MountFailed(f"the {what} failed (Alert): {scope.last_message()}")
+    else:
+        notify(f"The {what} ended ({state}) after {elapsed:.1f} s.")
+    return state
+
+
+def _residual(scope: Telescope, command: _Command, targets: Targets, site: Site,
+              name: str) -> float:
+    """Reported coordinates against the target's place now, in the command's frame (arcsec)."""
+    now = pointing_for(targets, site, name)
+    v = scope.client.vector(scope.device, command.coordinate_property)
+    if command.coordinate_property == EOD_COORD:
+        ra_deg, dec_deg = now.ra_apparent_deg, now.dec_apparent_deg
+    else:
+        ra_deg, dec_deg = now.ra_j2000_deg, now.dec_j2000_deg
+    return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"], ra_deg, dec_deg)
