@@ -231,6 +231,12 @@ class _SampledChecks:
         self.moon_on = constraints.moon_separation > 0.0
         self.span = (float(span[0][0]), float(span[-1][1]))
         self.needed = self._screen(constraints.altitude_limit(site))
+        if self.mask is not None:
+            # The mask's nodes as unrefracted altitudes: refraction is monotonic, so
+            # comparing true altitudes is the same test without refracting every sample
+            # (between nodes the straight line differs by under 30").
+            self.mask_true = np.array([true_altitude_for_observed(h, *geo.refraction)
+                                       for h in self.mask.altitude])
 
     def _screen(self, limit: float) -> dict:
         """Which targets each sampled check can possibly cut, from a coarse all-target pass.
@@ -256,8 +262,8 @@ class _SampledChecks:
         """Whether the check passes for targets idx at times t (broadcasting)."""
         geo = self.geo
         if which == "mask":
-            alt, az = geo.observed_altaz(idx, t)
-            return alt >= self.mask.min_altitude(az)
+            alt, az = altaz_from_ha(geo.ha(idx, t), geo.dec[idx], geo.lat)
+            return alt >= np.interp(az, self.mask.azimuth, self.mask_true, period=360.0)
         target = _unit(geo.ra[idx], geo.dec[idx])
         if which == "sun":
             return geo.sky.separation_from("sun", target, t) >= self.sun_radius
@@ -274,6 +280,8 @@ class _SampledChecks:
                               ("sun", "too near the Sun"), ("moon", "too near the Moon")):
             idx = np.array([i for i in np.flatnonzero(self.needed[which]) if windows[i]],
                            dtype=int)
+            if which == "mask" and idx.size:
+                idx = idx[self._dips_below_mask(idx, windows)]
             if idx.size == 0:
                 continue
             allowed = self._allowed(which, idx)
@@ -281,6 +289,27 @@ class _SampledChecks:
                 windows[i] = [part for piece in windows[i] for part in iv.intersect([piece], intervals)]
                 if not windows[i]:
                     reasons[i] = reason
+
+    def _dips_below_mask(self, idx: np.ndarray, windows: list) -> np.ndarray:
+        """Which targets go below the mask's highest point during their windows.
+
+        Along a window the altitude changes monotonically between culminations, so its
+        lowest value is at an end or at the lower culmination (HA = 180) when inside.
+        """
+        geo = self.geo
+        owner = np.repeat(np.arange(idx.size), [len(windows[i]) for i in idx])
+        ends = np.array([t for i in idx for piece in windows[i] for t in piece]).reshape(-1, 2)
+        target = idx[owner]
+        alt_start, _ = altaz_from_ha(geo.ha(target, ends[:, 0]), geo.dec[target], geo.lat)
+        alt_end, _ = altaz_from_ha(geo.ha(target, ends[:, 1]), geo.dec[target], geo.lat)
+        lowest = np.minimum(alt_start, alt_end)
+        ha0, ha1 = geo.ha(target, ends[:, 0]), geo.ha(target, ends[:, 1])
+        crosses = np.floor((ha1 - 180.0) / 360.0) > np.floor((ha0 - 180.0) / 360.0)
+        lower, _ = altaz_from_ha(np.full(target.shape, 180.0), geo.dec[target], geo.lat)
+        lowest = np.where(crosses, np.minimum(lowest, lower), lowest)
+        per_target = np.full(idx.size, np.inf)
+        np.minimum.at(per_target, owner, lowest)
+        return per_target < float(self.mask_true.max())
 
     def _allowed(self, which: str, idx: np.ndarray) -> list:
         """For targets idx, the intervals of the span where the check passes."""
