@@ -171,9 +171,6 @@ def test_bad_input_gives_one_line_and_a_nonzero_exit(capsys, argv, words):
     assert lines[0].startswith("epochpoint: error:") and words in lines[0], lines[0]
 
 
-@pytest.mark.xfail(strict=True, reason="engine: plan() reads priority/exposure/repeats from "
-                   "the target extras in core.plan._extra_column, whose TargetError names the "
-                   "target index and column but not the file or its line")
 def test_bad_planning_column_names_file_row_and_column(capsys, tmp_path):
     # Reference: the project's rule for bad input (one line naming file, row and column).
     path = tmp_path / "bad_priority.csv"

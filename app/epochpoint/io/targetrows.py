@@ -21,6 +21,7 @@ from .angles import parse_ra, parse_dec
 from .epochs import EPOCH_MAX_YEAR, EPOCH_MIN_YEAR, parse_epoch
 from .errors import InputError, SkippedRowWarning, quote
 from .frames import convert_to_icrs, parse_equinox, parse_frame
+from .planningfields import PARSERS
 from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS
 
 DEFAULT_EPOCH_JYEAR = 2000.0
@@ -196,6 +197,20 @@ def _parse_frame_pair(frame_text: str, equinox_text: str, frame_label: str, equi
         return "icrs", "", (equinox_label, str(err))
 
 
+def _check_planning_fields(raw: RawTable, note) -> None:
+    """Priority, exposure and repeats cells are checked on reading (planningfields.py), so a
+    typo is reported with its file line; the values themselves stay in the extras."""
+    for label, cells in raw.extra.items():
+        name = str(label).strip().lower()
+        if name not in PARSERS or name == "notes":
+            continue
+        for i, cell in enumerate(cells):
+            try:
+                PARSERS[name](cell)
+            except ValueError as err:
+                note(i, label, str(err))
+
+
 def warn_skipped(error: InputError) -> None:
     """The default report of a skipped row: a warning with the error's one-line text."""
     warnings.warn(str(error), SkippedRowWarning, stacklevel=4)
@@ -223,6 +238,7 @@ def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> T
         for i, message in column_problems.items():
             note(i, column.label, message)
     frames, equinoxes = _frames(raw, note)
+    _check_planning_fields(raw, note)
 
     keep = np.ones(len(raw), dtype=bool)
     for i in sorted(problems):
