@@ -25,16 +25,17 @@ def settings(tmp_path):
 
 @pytest.fixture
 def make_window(qtbot, settings, tmp_path):
-    """make_window(path=None) -> a shown MainWindow, optionally with a file opened."""
+    """make_window(path=None, interactive=False) -> a shown MainWindow, optionally with a file
+    opened (an interactive window shows message boxes: patch them in the test)."""
     from epochpoint.gui.app import make_application
     from epochpoint.gui.main_window import MainWindow
 
     make_application()
     made = []
 
-    def make(path=None):
+    def make(path=None, interactive=False):
         window = MainWindow(settings, recovery_folder=str(tmp_path / "recovery"),
-                            interactive=False)
+                            interactive=interactive)
         made.append(window)
         window.resize(1300, 820)
         window.show()

@@ -23,7 +23,7 @@ def _desktop_entry():
 
 
 def test_desktop_entry_keys():
-    # Required and recommended keys of the freedesktop.org Desktop Entry Specification 1.5
+    # Required and recommended keys of the freedesktop.org Desktop Entry Specification
     # (section "Recognized desktop entry keys"): Type, Name; Exec for an Application.
     entry = _desktop_entry()
     assert entry["Type"] == "Application" and entry["Name"] == "Epochpoint"

@@ -203,3 +203,28 @@ def test_progress_bar_and_cancel_show_while_a_task_runs(make_window, qtbot):
     assert window.cancel_button.isVisibleTo(window)
     qtbot.waitUntil(lambda: not window.computing(), timeout=30000)
     assert not window.cancel_button.isVisibleTo(window)
+
+
+def test_panel_click_selects_the_row_even_when_filtered_out(make_window, qtbot):
+    window = make_window(DEMO_PLAN)
+    window.filter_box.setText("wick")
+    assert window.proxy.rowCount() == 1 and window.count_label.text() == "1 of 30 shown"
+    window.tonight.target_clicked.emit(5)  # Cinder, hidden by the filter
+    assert window.filter_box.text() == "" and window.selected == 5
+    assert window.proxy.doc_row(window.table.currentIndex()) == 5
+    assert window.tonight.selected == 5 and window.skydome.selected == 5
+
+
+def test_interactive_open_of_a_bad_file_shows_a_message_box_and_keeps_the_plan(
+        make_window, tmp_path, monkeypatch):
+    shown = []
+    monkeypatch.setattr("epochpoint.gui.main_window.QMessageBox.warning",
+                        lambda parent, title, text: shown.append((title, text)))
+    window = make_window(DEMO_PLAN, interactive=True)
+    bad = tmp_path / "bad.json"
+    bad.write_text("{not json", encoding="utf-8")
+    before = window.document.rows
+    assert not window.open_path(str(bad))
+    assert len(shown) == 1 and shown[0][0] == "Cannot open"
+    assert "bad.json, line 1" in shown[0][1] and "\n" not in shown[0][1]
+    assert window.document.rows is before and window.document.path == DEMO_PLAN

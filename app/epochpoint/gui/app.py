@@ -128,6 +128,9 @@ def _start_with(window, site_spec, night) -> None:
 
 
 def _screenshot(app, path, png_path, site_spec, night, load_path, window_class) -> int:
+    folder = os.path.dirname(os.path.abspath(png_path))
+    if not os.path.isdir(folder):
+        raise OSError(f"{png_path}: no such folder")
     doc, kept = load_path(path, site_spec, night) if path else (None, None)
     with tempfile.TemporaryDirectory(prefix="epochpoint-shot-") as scratch:
         settings = QSettings(os.path.join(scratch, "settings.ini"), QSettings.Format.IniFormat)
@@ -147,9 +150,6 @@ def _screenshot(app, path, png_path, site_spec, night, load_path, window_class) 
     if not finished:
         raise OSError(f"{png_path}: the computations did not finish within "
                       f"{SCREENSHOT_TIMEOUT_S:.0f} s")
-    folder = os.path.dirname(os.path.abspath(png_path))
-    if not os.path.isdir(folder):
-        raise OSError(f"{png_path}: no such folder")
     if not image.save(os.fspath(png_path), "PNG"):
         raise OSError(f"{png_path}: could not write the PNG")
     return 0

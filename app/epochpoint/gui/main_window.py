@@ -102,7 +102,7 @@ class MainWindow(FileActions, QMainWindow):
         self.filter_box = QLineEdit()
         self.filter_box.setPlaceholderText("Filter by name or notes  (Ctrl+F)")
         self.filter_box.setClearButtonEnabled(True)
-        self.filter_box.textChanged.connect(self.proxy.setFilterFixedString)
+        self.filter_box.textChanged.connect(self._on_filter_text)
         self.table = QTableView()
         self.table.setObjectName("targetTable")
         self.table.setModel(self.proxy)
@@ -278,6 +278,10 @@ class MainWindow(FileActions, QMainWindow):
         if targets is not self._targets_for_drift:
             self._targets_for_drift = targets
             self.drift.set_targets(targets)
+
+    def _on_filter_text(self, text: str) -> None:
+        self.proxy.setFilterFixedString(text)
+        self._update_count()
 
     def _update_count(self) -> None:
         total = self.document.row_count()
