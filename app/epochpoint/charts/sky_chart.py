@@ -17,7 +17,11 @@ from matplotlib.figure import Figure
 from matplotlib.lines import Line2D
 
 from .chart_style import apply_axes_style, mix, resolve_style
+from .night_chart import chart_targets
 from .plan_clock import clock_text
+
+# How many target names the map writes (highest priority first).
+MAX_NAMED = 40
 
 ALTITUDE_RINGS_DEG = (0.0, 30.0, 60.0)
 SUN_CIRCLE_BELOW_DEG = -18.0  # astronomical twilight: the avoidance circle matters above this
@@ -135,13 +139,18 @@ def draw_sky_chart(figure: Figure, plan, t_seconds: float, selected: int | None 
     ok = observable_at(plan, t_seconds)
     up = np.flatnonzero(alt > 0.0)
     names = plan.windows.names
+    # Names for the highest-priority targets only (and the selected one): a long list would
+    # bury the map under text and cost seconds to draw.
+    named = set(chart_targets(plan, MAX_NAMED).tolist())
+    if selected is not None:
+        named.add(int(selected))
     for flag, marker, colour, size in ((False, "x", look["unobservable"], 6),
                                        (True, "o", look["observable"], 7)):
         pick = up[ok[up] == flag]
         ax.plot(np.radians(az[pick]), _zd(alt[pick]), ls="none", marker=marker, ms=size,
                 color=colour, mew=1.6, zorder=5,
                 gid="targets_observable" if flag else "targets_not_observable")
-        for i in pick:
+        for i in (i for i in pick if i in named):
             ax.annotate(str(names[i]), (np.radians(az[i]), _zd(alt[i])),
                         xytext=(9, 4) if i == selected else (5, 3),
                         textcoords="offset points", fontsize=7, zorder=6,
