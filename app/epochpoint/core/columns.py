@@ -5,7 +5,10 @@ from collections.abc import Mapping
 
 
 class ColumnTable(Mapping):
-    """Result columns in a fixed order, plus `meta` (scalars) and `units` (name -> unit)."""
+    """Result columns in a fixed order, plus `meta` (scalars) and `units` (name -> unit).
+
+    A column may be given as a zero-argument callable: it is made on first access (target
+    names T1..Tn for a million stars cost more than their positions)."""
 
     def __init__(self, columns: dict, meta: dict | None = None, units: dict | None = None):
         self._columns = columns
@@ -13,7 +16,10 @@ class ColumnTable(Mapping):
         self.units = {k: v for k, v in (units or {}).items() if k in columns}
 
     def __getitem__(self, key):
-        return self._columns[key]
+        value = self._columns[key]
+        if callable(value):
+            value = self._columns[key] = value()
+        return value
 
     def __iter__(self):
         return iter(self._columns)
@@ -24,9 +30,8 @@ class ColumnTable(Mapping):
     @property
     def nrows(self) -> int:
         """Number of rows (targets)."""
-        return len(next(iter(self._columns.values()))) if self._columns else 0
+        return len(self[next(iter(self._columns))]) if self._columns else 0
 
     def select(self, rows) -> "ColumnTable":
         """The same columns restricted to some rows (index array or boolean mask)."""
-        return ColumnTable({k: v[rows] for k, v in self._columns.items()}, self.meta,
-                           self.units)
+        return ColumnTable({k: self[k][rows] for k in self._columns}, self.meta, self.units)

@@ -38,57 +38,63 @@ def kasten_young_airmass(alt_rad: np.ndarray) -> np.ndarray:
     X = 1 / (sin h + 0.50572 (h + 6.07995 deg)^-1.6364), h in degrees; about 38 at the horizon;
     NaN below it.
     """
-    h_deg = np.degrees(alt_rad)
-    with np.errstate(invalid="ignore"):
-        airmass = 1.0 / (np.sin(alt_rad) + 0.50572 * (h_deg + 6.07995) ** -1.6364)
-    return np.where(h_deg >= 0.0, airmass, np.nan)
+    alt_rad = np.asarray(alt_rad, dtype=float)
+    airmass = np.full(alt_rad.shape, np.nan)
+    up = alt_rad >= 0.0
+    h = alt_rad[up]
+    airmass[up] = 1.0 / (np.sin(h) + 0.50572 * (np.degrees(h) + 6.07995) ** -1.6364)
+    return airmass
+
+
+def _rz(angle: float) -> np.ndarray:
+    c, s = np.cos(angle), np.sin(angle)
+    return np.array([[c, s, 0.0], [-s, c, 0.0], [0.0, 0.0, 1.0]])
+
+
+def site_matrices(site: SiteContext) -> tuple[np.ndarray, np.ndarray]:
+    """The two rotations of atioq as matrices (per instant): CIRS to the local -HA/Dec frame
+    (Earth rotation angle with longitude and s', then polar motion about the local meridian),
+    and -HA/Dec to the horizon frame (x south, y east, z zenith)."""
+    sx, cx = np.sin(site.xpl), np.cos(site.xpl)
+    sy, cy = np.sin(site.ypl), np.cos(site.ypl)
+    polar = np.array([[cx, 0.0, sx], [sx * sy, cy, -cx * sy], [-sx * cy, sy, cx * cy]])
+    to_hadec = polar @ _rz(site.eral)
+    to_horizon = np.array([[site.sin_lat, 0.0, -site.cos_lat], [0.0, 1.0, 0.0],
+                           [site.cos_lat, 0.0, site.sin_lat]])
+    return to_hadec, to_horizon
 
 
 def observed_place(p_cirs: np.ndarray, site: SiteContext) -> ObservedPlace:
     """Observed place of (3, n) CIRS unit vectors at the context's site (SOFA atioq)."""
-    # CIRS to the local -HA/Dec frame: rotate by the local Earth rotation angle.
-    c, s = np.cos(site.eral), np.sin(site.eral)
-    x = c * p_cirs[0] + s * p_cirs[1]
-    y = -s * p_cirs[0] + c * p_cirs[1]
-    z = p_cirs[2]
-
-    # Polar motion about the local meridian.
-    sx, cx = np.sin(site.xpl), np.cos(site.xpl)
-    sy, cy = np.sin(site.ypl), np.cos(site.ypl)
-    xhd = cx * x + sx * z
-    yhd = sx * sy * x + cy * y - cx * sy * z
-    zhd = -sx * cy * x + sy * y + cx * cy * z
+    to_hadec, to_horizon = site_matrices(site)
+    # Earth rotation and polar motion: CIRS to the local -HA/Dec frame.
+    xhd, yhd, zhd = to_hadec @ p_cirs
 
     # Diurnal aberration from the site's rotation velocity (first order, as atioq).
     f = 1.0 - site.diurnal_aberration * yhd
-    xhdt, yhdt, zhdt = f * xhd, f * (yhd + site.diurnal_aberration), f * zhd
-    diurnal = np.sqrt((xhdt - xhd) ** 2 + (yhdt - yhd) ** 2 + (zhdt - zhd) ** 2)
+    hd_aberrated = np.stack((f * xhd, f * (yhd + site.diurnal_aberration), f * zhd))
+    d = hd_aberrated - np.stack((xhd, yhd, zhd))
+    diurnal = np.sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2])
 
     # The horizon frame (x south, y east, z zenith).
-    xaet = site.sin_lat * xhdt - site.cos_lat * zhdt
-    yaet = yhdt
-    zaet = site.cos_lat * xhdt + site.sin_lat * zhdt
+    xaet, yaet, zaet = to_horizon @ hd_aberrated
     az = np.arctan2(yaet, -xaet)
-    az = np.where(az < 0.0, az + 2.0 * np.pi, az)
-    r = np.hypot(xaet, yaet)
+    az += (az < 0.0) * (2.0 * np.pi)
+    r = np.sqrt(xaet * xaet + yaet * yaet)
     alt_topo = np.arctan2(zaet, r)
 
-    # Refraction lifts the star towards the zenith by del.
+    # Refraction lifts the star towards the zenith by exactly delta.
     delta = refraction_rad(zaet, r, site.refa, site.refb, site.refraction_join,
                            site.refraction_horizon)
-    # Rotate by exactly delta (atioq's small-angle form loses 0.04" near the horizon).
     r_safe = np.maximum(r, 1e-6)
     cosdel, sindel = np.cos(delta), np.sin(delta)
     f = cosdel - sindel * zaet / r_safe
-    xaeo, yaeo = xaet * f, yaet * f
-    zaeo = cosdel * zaet + sindel * r
-    alt = np.arctan2(zaeo, np.hypot(xaeo, yaeo))
+    aeo = np.stack((xaet * f, yaet * f, cosdel * zaet + sindel * r))
+    alt = np.arctan2(aeo[2], r * f)
 
     # Back to the -HA/Dec frame for the observed hour angle and declination.
-    vx = site.sin_lat * xaeo + site.cos_lat * zaeo
-    vy = yaeo
-    vz = -site.cos_lat * xaeo + site.sin_lat * zaeo
-    ha = -np.arctan2(vy, vx)
+    vx, vy, vz = to_horizon.T @ aeo
+    ha = np.arctan2(-vy, vx)
     rho2 = vx * vx + vy * vy
     dec = np.arctan2(vz, np.sqrt(rho2))
 

@@ -22,7 +22,7 @@ from .spacemotion import propagate
 from .uncertainty import error_ellipse_at
 from .targets import Targets
 from .timescale import iso_z
-from .vectors import chord_separation, separation, to_spherical, wrap_pm180
+from .vectors import chord_separation, separation, to_spherical
 
 CHUNK_SIZE = 8192
 
@@ -88,7 +88,7 @@ def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False
         names += list(SITE_COLUMNS)
     if ledger:
         names += [c for c in LEDGER_COLUMNS if ctx.site is not None or c not in SITE_LEDGER]
-    out = {"name": targets.names()}
+    out = {"name": targets.names}  # made when first read
     out.update({c: np.empty(n) for c in names})
     chunks = [slice(start, min(start + CHUNK_SIZE, n)) for start in range(0, n, CHUNK_SIZE)]
     fill = partial(_fill_chunk, targets, ctx, out, ledger=ledger)
@@ -136,7 +136,7 @@ def _fill_chunk(targets: Targets, ctx: AstrometryContext, out: dict, rows: slice
     if ctx.site is not None:
         # Earth rotation, polar motion, diurnal aberration and refraction at the site.
         observed = observed_place(p_cirs, ctx.site)
-        out["ha"][rows] = wrap_pm180(observed.ha * RAD_TO_DEG)
+        np.multiply(observed.ha, RAD_TO_DEG, out=out["ha"][rows])
         np.multiply(observed.dec, RAD_TO_DEG, out=out["dec_observed"][rows])
         np.multiply(observed.alt, RAD_TO_DEG, out=out["alt"][rows])
         np.multiply(observed.az, RAD_TO_DEG, out=out["az"][rows])

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .constants import AU_KM_PER_S_YEAR, DEG_TO_RAD, MAS_TO_RAD
-from .vectors import tangent_triad, to_spherical, triad_of
+from .vectors import dot, tangent_triad, to_spherical, triad_of
 
 
 @dataclass(frozen=True)
@@ -54,28 +54,30 @@ def propagate(ra_deg, dec_deg, parallax, pm_ra_cosdec, pm_dec, radial_velocity, 
     # Work in radians per year from here on.
     pm_vec_rad = pm_vec * MAS_TO_RAD
     zeta0_rad = zeta0 * MAS_TO_RAD
-    pm2_rad = pm_vec_rad[0] ** 2 + pm_vec_rad[1] ** 2 + pm_vec_rad[2] ** 2
+    pm2_rad = (pm_vec_rad[0] * pm_vec_rad[0] + pm_vec_rad[1] * pm_vec_rad[1]
+               + pm_vec_rad[2] * pm_vec_rad[2])
 
     # Distance factor f: the star's distance at the new epoch is the old one divided by f.
     one_plus_zt = 1.0 + zeta0_rad * t
-    f = 1.0 / np.sqrt(2.0 * one_plus_zt - 1.0 + (pm2_rad + zeta0_rad ** 2) * t * t)
+    speed2 = pm2_rad + zeta0_rad * zeta0_rad
+    f = 1.0 / np.sqrt(2.0 * one_plus_zt - 1.0 + speed2 * t * t)
+    f2 = f * f
 
     # New direction: the straight-line path seen from the barycentre (eq. 1.5.7).
     u = (r0 * one_plus_zt + pm_vec_rad * t) * f
     # Parallax scales with inverse distance (eq. 1.5.8).
     parallax_t = parallax * f
     # Proper-motion vector changes through perspective acceleration (eq. 1.5.9).
-    pm_vec_t = (pm_vec * one_plus_zt - r0 * (pm2_rad * t / MAS_TO_RAD)) * f ** 3
+    pm_vec_t = (pm_vec * one_plus_zt - r0 * (pm2_rad * t / MAS_TO_RAD)) * (f2 * f)
     # Radial proper motion (eq. 1.5.10), back to radial velocity where the parallax allows.
-    zeta_t = (zeta0 + (pm2_rad + zeta0_rad ** 2) * t / MAS_TO_RAD) * f ** 2
+    zeta_t = (zeta0 + speed2 * t / MAS_TO_RAD) * f2
     with np.errstate(divide="ignore", invalid="ignore"):
         rv_t = np.where(parallax_t > 0.0, zeta_t * AU_KM_PER_S_YEAR / parallax_t,
                         radial_velocity)
 
     p_t, q_t = triad_of(u)
     return Propagated(u=u, u0=r0, parallax=parallax_t,
-                      pm_ra_cosdec=(p_t * pm_vec_t).sum(axis=0),
-                      pm_dec=(q_t * pm_vec_t).sum(axis=0),
+                      pm_ra_cosdec=dot(p_t, pm_vec_t), pm_dec=dot(q_t, pm_vec_t),
                       radial_velocity=rv_t)
 
 
