@@ -56,3 +56,23 @@ def test_status_reports_the_table_age():
     status = ep.earth_orientation_status(Time("2030-01-01T00:00:00", scale="utc"))
     assert status.last_measured < status.predictions_end
     assert status.age_days > 365
+
+
+def test_nothing_reaches_for_the_network(monkeypatch):
+    # With every socket connection refused, positions, drift and a night plan still work:
+    # no Earth-orientation download, no ephemeris download (the project's offline rule).
+    import socket
+
+    def refuse(*args, **kwargs):
+        raise AssertionError("a network connection was attempted")
+
+    monkeypatch.setattr(socket.socket, "connect", refuse)
+    monkeypatch.setattr(socket, "create_connection", refuse)
+    targets = ep.Targets.from_columns(ra=[10.0, 250.0], dec=[-20.0, -60.0],
+                                      pm_ra_cosdec=[100.0, 0.0], epoch=2016.0)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", StaleEarthOrientation)
+        assert np.isfinite(ep.positions(targets, SITE, "now")["alt"]).all()
+        ep.drift(targets, "now", 1.0)
+        ep.plan(targets, ep.Site(latitude=-24.6, longitude=-70.4, height=2635.0),
+                "2031-03-01", max_seconds=0.05)
