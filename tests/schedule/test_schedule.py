@@ -319,3 +319,10 @@ def test_latest_arrivals_are_the_last_moments_that_keep_the_order_feasible():
             assert not rest_feasible(order.route, k, latest[k] + 1e-3, *night)
             checked += 1
     assert checked >= 80
+
+
+def test_a_block_exactly_as_long_as_its_window_fits_despite_rounding():
+    # Found by hypothesis: a window exactly as long as the block, and a settle time so small
+    # that start + duration rounds to the window's end, must still take the block.
+    plan = schedule([1.0], [60.0], [[(0.0, 60.0)]], 3600.0, slew_s=np.full((2, 1), 2e-176))
+    assert list(plan.index) == [0]

@@ -29,6 +29,8 @@ import numpy as np
 # long enough: no window holds the block (counting the slew from the park when the block
 # would open the night). Displaced: it fits on its own but the best order found is worth more
 # without it.
+# Times closer than this are equal for the scheduler (seconds).
+TIME_TOLERANCE_S = 1e-9
 NO_WINDOW = "no window"
 NO_WINDOW_LONG_ENOUGH = "no window long enough"
 DISPLACED = "displaced by higher-value targets"
@@ -117,9 +119,10 @@ def night_problem(weight, duration_s, windows_s, night_end_s, slew_s=None) -> Ni
     for i in range(n):
         pairs = np.clip(_windows_list(windows_s, i), 0.0, night_end_s)
         inside = pairs[pairs[:, 1] > pairs[:, 0]]
-        # A window is usable when it holds the whole block; the block's latest start is end - d.
-        usable.append(sorted((float(a), float(b) - duration[i]) for a, b in inside
-                             if b - a >= duration[i]))
+        # A window is usable when it holds the whole block; the block's latest start is end - d
+        # (plus a nanosecond, so that rounding of start + duration never rejects a fit).
+        usable.append(sorted((float(a), float(b) - duration[i] + TIME_TOLERANCE_S)
+                             for a, b in inside if b - a >= duration[i]))
         alone = any(max(a, table[n, i]) <= last for a, last in usable[i])
         reason.append(None if alone else NO_WINDOW if inside.size == 0 else NO_WINDOW_LONG_ENOUGH)
     width = max((len(u) for u in usable), default=0)

@@ -1,6 +1,6 @@
-"""File handling of the main window: new, open, import, save, save as, recent files, and
-the question before unsaved changes are dropped. Mixed into MainWindow, whose document,
-settings, autosaver and message helpers it uses."""
+"""File handling of the main window: new, open, import, save, save as, export positions,
+recent files, and the question before unsaved changes are dropped. Mixed into MainWindow,
+whose document, settings, autosaver and message helpers it uses."""
 from __future__ import annotations
 
 import os
@@ -118,6 +118,23 @@ class FileActions:
         self._remember(path)
         self.show_message(f"Saved {path}", 5000)
         return True
+
+    def export_positions_dialog(self) -> None:
+        """File > Export positions: the dialog on a snapshot of the targets and the site."""
+        from .export_dialog import ExportDialog
+
+        if self.document.row_count() == 0:
+            self.show_message("No targets to export.")
+            return
+        plan = self.plan if self._plan_generation == self.document.generation else None
+        stem = os.path.splitext(os.path.basename(self.document.path or "plan"))[0]
+        self.export_dialog = ExportDialog(
+            self.document.targets(), self.document.site, plan=plan,
+            tolerance_arcsec=self.document.tolerance,
+            path=os.path.join(self._start_folder(), f"{stem}-positions.csv"), parent=self)
+        self.export_dialog.exported.connect(
+            lambda s: self.show_message(f"Exported {s.exported} target(s) to {s.path}"))
+        self.export_dialog.open()
 
     def maybe_save(self) -> bool:
         """True when it is fine to drop the document (saved, discarded or clean)."""

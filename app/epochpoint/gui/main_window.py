@@ -2,9 +2,9 @@
 
 Layout (top to bottom): the caution strip; a note while the site is only a placeholder; the
 night settings bar; a splitter with the target list (filter box above it) on the left and the
-tabs Tonight / Sky dome / Drift / Site & limits on the right; the correction ledger docked
-below; the status bar with messages, a progress bar and Cancel while a task runs, and the
-clocks. Every action has a keyboard shortcut.
+tabs Tonight / Sky dome / Drift / Site & limits / Mount on the right; the correction ledger
+docked below; the status bar with messages, a progress bar and Cancel while a task runs, and
+the clocks. Every action has a keyboard shortcut.
 
 Recompute: any change of targets, site or night settings restarts a RECOMPUTE_DELAY_MS timer;
 when it fires, the night's plan and the state "now" run in workers (a newer request cancels
@@ -32,6 +32,7 @@ from .file_actions import FileActions
 from .menus import build_menus
 from .night_bar import NightBar
 from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
+from .panels.mount_panel import MountPanel
 from .recompute import night_plan, now_state
 from .recovery import Autosaver
 from .status import StatusClocks
@@ -152,8 +153,11 @@ class MainWindow(FileActions, QMainWindow):
         self.tabs.setDocumentMode(True)
         self.tonight, self.skydome = TonightPanel(self), SkyDomePanel(self)
         self.drift, self.site_editor = DriftPanel(self), SiteEditor(self)
+        self.mount_panel = MountPanel(self)
+        self.mount_panel.status_message.connect(self.show_message)
         for widget, title in ((self.tonight, "&Tonight"), (self.skydome, "S&ky dome"),
-                              (self.drift, "D&rift"), (self.site_editor, "Site && &limits")):
+                              (self.drift, "D&rift"), (self.site_editor, "Site && &limits"),
+                              (self.mount_panel, "M&ount")):
             self.tabs.addTab(widget, title)
         for panel in (self.tonight, self.skydome, self.drift):
             panel.target_clicked.connect(self.select_target)
@@ -245,6 +249,7 @@ class MainWindow(FileActions, QMainWindow):
         self.site_note.setVisible(self.document.has_placeholder_site)
         self.clocks.set_site(site)
         self.site_editor.set_site(site)
+        self.mount_panel.set_site(site)
 
     def _on_tolerance_changed(self, arcsec: float) -> None:
         self.drift.set_tolerance(arcsec)
@@ -278,6 +283,7 @@ class MainWindow(FileActions, QMainWindow):
         if targets is not self._targets_for_drift:
             self._targets_for_drift = targets
             self.drift.set_targets(targets)
+            self.mount_panel.set_targets(targets)
 
     def _on_filter_text(self, text: str) -> None:
         self.proxy.setFilterFixedString(text)
@@ -303,7 +309,7 @@ class MainWindow(FileActions, QMainWindow):
         if doc_row == self.selected:
             return
         self.selected = doc_row
-        for panel in (self.tonight, self.skydome, self.drift):
+        for panel in (self.tonight, self.skydome, self.drift, self.mount_panel):
             panel.set_selected(doc_row)
         if doc_row is None:
             self.ledger.set_row(None)
@@ -500,5 +506,6 @@ class MainWindow(FileActions, QMainWindow):
                       self.autosaver.timer):
             timer.stop()
         self.autosaver.clear()  # saved or knowingly discarded; a crash never gets here
+        self.mount_panel.shutdown()  # aborts a slew it still follows, closes the connection
         workers.wait_for_workers()
 

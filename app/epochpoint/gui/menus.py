@@ -39,6 +39,8 @@ def build_menus(window) -> dict:
     a["save"] = _action(w, menu, "&Save", keys.Save, w.save, "Save the plan")
     a["save_as"] = _action(w, menu, "Save &as…", "Ctrl+Shift+S", w.save_as,
                            "Save the plan under a new name")
+    a["export"] = _action(w, menu, "E&xport positions…", "Ctrl+E", w.export_positions_dialog,
+                          "Write every target's coordinates at one instant for a controller")
     menu.addSeparator()
     w.recent_menu = menu.addMenu("&Recent files")
     menu.addSeparator()
@@ -69,7 +71,7 @@ def build_menus(window) -> dict:
     menu.addSeparator()
     a["list"] = _action(w, menu, "Target &list", "Ctrl+0", lambda: w.table.setFocus(),
                         "Move the focus to the target list")
-    for i, name in enumerate(("Tonight", "Sky dome", "Drift", "Site & limits")):
+    for i, name in enumerate(("Tonight", "Sky dome", "Drift", "Site & limits", "Mount")):
         a[f"tab{i}"] = _action(w, menu, f"&{i + 1} {name.replace('&', '&&')}", f"Ctrl+{i + 1}",
                                lambda _=False, i=i: w.show_tab(i), f"Show {name}")
     a["ledger"] = w.ledger_dock.toggleViewAction()
@@ -77,6 +79,11 @@ def build_menus(window) -> dict:
     a["ledger"].setShortcut(QKeySequence("Ctrl+Shift+L"))
     menu.addAction(a["ledger"])
     w.addAction(a["ledger"])
+
+    menu = bar.addMenu("&Mount")
+    a["abort"] = w.mount_panel.abort_action  # Ctrl+Shift+A, wherever the focus is
+    menu.addAction(a["abort"])
+    w.addAction(a["abort"])
 
     menu = bar.addMenu("&Help")
     a["safety"] = _action(w, menu, "&Safety cautions", "F1", lambda: show_safety_dialog(w),
