@@ -16,7 +16,6 @@ import numpy as np
 
 from . import intervals as iv
 from .constants import RAD_TO_DEG
-from .context import make_context
 from .horizon_geometry import (SIDEREAL_DEG_PER_S, altaz_from_ha, altitude_for_airmass,
                                ha_at_altitude, observed_altitude, true_altitude_for_observed)
 from .positions import positions

@@ -120,7 +120,7 @@ def angular_distance_arcsec(ra1_deg, dec1_deg, ra2_deg, dec2_deg) -> float:
     return float(separation(a, b)[0] * RAD_TO_ARCSEC)
 
 
-def _is_telescope(client: IndiClient, device: str) -> bool:
+def is_telescope(client: IndiClient, device: str) -> bool:
     props = client.vectors(device)
     if EOD_COORD in props or J2000_COORD in props:
         return True
@@ -150,12 +150,12 @@ def find_telescope(client: IndiClient, device: str | None, timeout_s: float) -> 
         client.wait_for(lambda: device in client.devices(), timeout_s,
                         f"device {device!r} to appear")
         _settle(client)
-        if not _is_telescope(client, device):
+        if not is_telescope(client, device):
             raise MountFailed(f"device {device!r} at {client.address} is not a telescope")
         return device
 
     def telescopes():
-        return [d for d in client.devices() if _is_telescope(client, d)]
+        return [d for d in client.devices() if is_telescope(client, d)]
 
     try:
         client.wait_for(telescopes, timeout_s, "a telescope device")

@@ -16,26 +16,24 @@ never resumes a motion (mount.errors.ConnectionLost).
 """
 from __future__ import annotations
 
-import threading
 import time
 from datetime import datetime, timezone
 
-from PySide6.QtCore import QObject, Qt, QTimer, Signal
+from PySide6.QtCore import Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QFontDatabase, QKeySequence, QShortcut
-from PySide6.QtWidgets import (QComboBox, QDialog, QDialogButtonBox, QDoubleSpinBox, QGridLayout,
+from PySide6.QtWidgets import (QComboBox, QDialog, QDoubleSpinBox, QGridLayout,
                                QGroupBox, QHBoxLayout, QLabel, QLineEdit, QPlainTextEdit,
                                QPushButton, QVBoxLayout, QWidget)
 
 from ...io.angles import format_dec_dms, format_ra_hms
-from ...mount import (CAUTION, ConnectionLost, IndiClient, IndiTimeout, MountFailed, Telescope,
-                      find_telescope, parse_address, pointing_for, slew_to_target)
-from ...mount.telescope import FRAME_TEXT, J2000_COORD, _is_telescope
-from ..caution import CAUTION_TEXT
+from ...mount import ConnectionLost, Telescope, pointing_for, slew_to_target
+from ...mount.telescope import FRAME_TEXT
+from .mount_jobs import JOIN_TIMEOUT_S, MountJob, one_line, open_mount, switch_device
+from .mount_text import ConfirmMotionDialog, confirmation_text, report_text
 from ..document import PLACEHOLDER_SITE_NAME
 from .theme_link import theme_colour, theme_name, watch_theme
 
 DEFAULT_ADDRESS = "localhost:7624"
-CONNECT_TIMEOUT_S = 10.0
 STATUS_POLL_MS = 500
 # The selected target's verdict is refreshed this often while the panel is in use: a target
 # sets below the altitude limit or the Sun comes near within minutes.
@@ -46,185 +44,6 @@ CONFIRM_FRESH_S = 60.0
 # The device's site "matches" ours within these (about 10 m on the ground).
 SITE_MATCH_DEG, SITE_MATCH_M = 1e-4, 10.0
 LOG_LINES = 300
-JOIN_TIMEOUT_S = 6.0
-
-
-def _one_line(err: BaseException) -> str:
-    return " ".join(str(err).split()) or type(err).__name__
-
-
-def telescope_devices(client: IndiClient) -> list[str]:
-    """The devices on the server that are telescopes, in the order they appeared."""
-    return [d for d in client.devices() if _is_telescope(client, d)]
-
-
-def open_mount(address: str, device: str | None, timeout_s: float = CONNECT_TIMEOUT_S):
-    """Connect to the INDI server at "HOST:PORT", CONNECT a telescope device (`device`, or the
-    first telescope seen) and return (Telescope, the names of every telescope there)."""
-    host, port = parse_address(address)
-    client = IndiClient(host, port, connect_timeout_s=min(timeout_s, 5.0)).open()
-    try:
-        try:
-            client.wait_for(lambda: telescope_devices(client), timeout_s, "a telescope device")
-        except IndiTimeout:
-            seen = ", ".join(client.devices()) or "none"
-            raise MountFailed(f"no telescope device at {client.address} within {timeout_s:g} s "
-                              f"(devices seen: {seen})") from None
-        scope = Telescope(client, find_telescope(client, device or telescope_devices(client)[0],
-                                                 timeout_s))
-        scope.connect(timeout_s)
-        return scope, telescope_devices(client)
-    except BaseException:
-        client.close()
-        raise
-
-
-def switch_device(scope: Telescope, device: str, timeout_s: float = CONNECT_TIMEOUT_S):
-    """The same server's telescope `device`, CONNECTed."""
-    other = Telescope(scope.client, find_telescope(scope.client, device, timeout_s))
-    other.connect(timeout_s)
-    return other
-
-
-def sent_place(pointing, coordinate_property: str | None) -> tuple[float, float, str]:
-    """(RA deg, Dec deg, frame text) that Telescope.command sends for this pointing."""
-    if coordinate_property == J2000_COORD:
-        return pointing.ra_j2000_deg, pointing.dec_j2000_deg, FRAME_TEXT[J2000_COORD]
-    return (pointing.ra_apparent_deg, pointing.dec_apparent_deg,
-            FRAME_TEXT["EQUATORIAL_EOD_COORD"])
-
-
-def confirmation_text(pointing, sync: bool, device: str, coordinate_property: str | None,
-                      sun_avoidance_deg: float) -> str:
-    """What the confirmation states: the exact numbers to be sent, the target now, the caution."""
-    ra_deg, dec_deg, frame = sent_place(pointing, coordinate_property)
-    what = (f"Sync {device} to {pointing.name}" if sync
-            else f"Slew {device} to {pointing.name} and track it")
-    lines = [
-        what,
-        "",
-        f"Coordinates to send ({coordinate_property or 'EQUATORIAL_EOD_COORD'}, {frame}):",
-        f"    RA   {format_ra_hms(ra_deg, 2)}   ({ra_deg / 15.0:.8f} h)",
-        f"    Dec  {format_dec_dms(dec_deg, 1)}   ({dec_deg:+.7f}°)",
-        f"{pointing.name} at {pointing.time}: altitude {pointing.alt_deg:.2f}°, azimuth "
-        f"{pointing.az_deg:.2f}°, {pointing.sun_separation_deg:.1f}° from the Sun "
-        f"(avoidance radius {sun_avoidance_deg:g}°).",
-        "",
-    ]
-    if sync:
-        lines.append("A sync moves nothing, but every later slew trusts it: be sure the "
-                     f"telescope is centred on {pointing.name}.")
-    lines += [CAUTION, CAUTION_TEXT]
-    return "\n".join(lines)
-
-
-def report_text(report) -> str:
-    """One paragraph on a finished slew or sync (mount.SlewReport)."""
-    action = report.action.capitalize()
-    if report.aborted:
-        head = f"{action} of {report.target} stopped by ABORT (state {report.final_state})"
-    else:
-        head = f"{action} of {report.target} ended {report.final_state}"
-    parts = [head]
-    if report.residual_arcsec is not None:
-        tolerance = ("within" if report.within_tolerance else "BEYOND") + \
-            f" the tolerance of {report.tolerance_arcsec:g}″"
-        residual = f"residual {report.residual_arcsec:.2f}″ from the target's place now"
-        if report.refined:
-            residual += f" after one refining slew (first {report.first_residual_arcsec:.2f}″)"
-        parts.append(f"{residual}, {tolerance}")
-    if report.reported_ra_deg is not None:
-        parts.append(f"device reports RA {format_ra_hms(report.reported_ra_deg, 2)} Dec "
-                     f"{format_dec_dms(report.reported_dec_deg, 1)}")
-    return "; ".join(parts) + "."
-
-
-class MountJob(QObject):
-    """One blocking mount call in a thread of its own; its outcome arrives on the GUI thread.
-
-    `say` may be passed to the call as its notify callback (thread-safe).
-    """
-
-    done = Signal(object)
-    failed = Signal(object)  # the exception
-    said = Signal(str)
-    finished = Signal()
-    _event = Signal(str, object)  # emitted in the job's thread, delivered queued
-
-    def __init__(self, label: str, func, *args, **kwargs):
-        super().__init__()
-        self.label, self.func, self.args, self.kwargs = label, func, args, kwargs
-        self._event.connect(self._deliver, Qt.ConnectionType.QueuedConnection)
-        self._thread = threading.Thread(target=self._run, name=f"mount: {label}", daemon=True)
-        self._dropped = False
-
-    def start(self) -> "MountJob":
-        self._thread.start()
-        return self
-
-    def say(self, text: str) -> None:
-        self._event.emit("said", str(text))
-
-    def running(self) -> bool:
-        return self._thread.is_alive()
-
-    def drop(self) -> None:
-        """Deliver nothing more (its owner is closing); the call itself runs to its end."""
-        self._dropped = True
-
-    def wait(self, timeout_s: float) -> bool:
-        if self._thread.ident is not None:
-            self._thread.join(timeout_s)
-        return not self._thread.is_alive()
-
-    def _run(self) -> None:
-        try:
-            result = self.func(*self.args, **self.kwargs)
-        except Exception as err:  # noqa: BLE001 - every failure is shown as one line
-            self._event.emit("failed", err)
-        else:
-            self._event.emit("done", result)
-        finally:
-            self._event.emit("finished", None)
-
-    def _deliver(self, kind: str, payload) -> None:
-        if self._dropped:
-            return
-        if kind == "done":
-            self.done.emit(payload)
-        elif kind == "failed":
-            self.failed.emit(payload)
-        elif kind == "said":
-            self.said.emit(payload)
-        else:
-            self.finished.emit()
-
-
-class ConfirmMotionDialog(QDialog):
-    """The last question before anything is sent: accept sends, anything else sends nothing."""
-
-    def __init__(self, text: str, sync: bool, parent=None):
-        super().__init__(parent)
-        self.setWindowTitle("Confirm sync" if sync else "Confirm slew")
-        self.message = QLabel(text)
-        self.message.setObjectName("confirmText")
-        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.message.setWordWrap(True)
-        self.message.setMinimumWidth(520)
-        buttons = QDialogButtonBox()
-        go = buttons.addButton("Sync" if sync else "Slew and track",
-                               QDialogButtonBox.ButtonRole.AcceptRole)
-        cancel = buttons.addButton(QDialogButtonBox.StandardButton.Cancel)
-        go.setAutoDefault(False)
-        cancel.setDefault(True)  # Enter does not move the mount
-        buttons.accepted.connect(self.accept)
-        buttons.rejected.connect(self.reject)
-        layout = QVBoxLayout(self)
-        layout.addWidget(self.message)
-        layout.addWidget(buttons)
-
-    def text(self) -> str:
-        return self.message.text()
 
 
 class MountPanel(QWidget):
@@ -500,7 +319,7 @@ class MountPanel(QWidget):
     def _on_check_failed(self, serial: int, err) -> None:
         if serial == self._check_serial:
             self._confirm_serial = None
-            self.pointing, self.check_error = None, _one_line(err)
+            self.pointing, self.check_error = None, one_line(err)
             self._show_target()
             self._update_controls()
 
@@ -588,8 +407,8 @@ class MountPanel(QWidget):
 
     def _on_connect_failed(self, err) -> None:
         self.busy_job = None
-        self._set_connection_text(f"Not connected: {_one_line(err)}", "danger")
-        self._log(f"Could not connect: {_one_line(err)}")
+        self._set_connection_text(f"Not connected: {one_line(err)}", "danger")
+        self._log(f"Could not connect: {one_line(err)}")
         self._update_controls()
 
     def _on_device_chosen(self, _index: int) -> None:
@@ -617,7 +436,7 @@ class MountPanel(QWidget):
         self.busy_job = None
         if self.scope is not None:
             self.device_combo.setCurrentText(self.scope.device)
-        self._log(f"Could not switch device: {_one_line(err)}")
+        self._log(f"Could not switch device: {one_line(err)}")
         self._update_controls()
 
     def disconnect_from_server(self) -> None:
@@ -793,7 +612,7 @@ class MountPanel(QWidget):
 
     def _on_motion_failed(self, err) -> None:
         self.motion_job = None
-        text = _one_line(err)
+        text = one_line(err)
         if isinstance(err, ConnectionLost):
             text += " — the mount may still be moving: check it"
         self.report_label.setText(f"Not completed: {text}")
@@ -834,9 +653,9 @@ class MountPanel(QWidget):
 
     def _on_job_failed(self, label: str, err) -> None:
         if isinstance(err, ConnectionLost) and self.scope is not None:
-            self._connection_lost(_one_line(err))
+            self._connection_lost(one_line(err))
         elif label not in ("connect", "interlock check"):
-            self._log(f"{label.capitalize()} failed: {_one_line(err)}")
+            self._log(f"{label.capitalize()} failed: {one_line(err)}")
 
     def _update_controls(self) -> None:
         connected, moving, busy = self.is_connected, self.is_moving, self.busy_job is not None

@@ -1,0 +1,91 @@
+"""What the mount panel tells the observer: the confirmation before any motion (the exact
+coordinates to be sent and the safety caution) and the report after it."""
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QDialog, QDialogButtonBox, QLabel, QVBoxLayout
+
+from ...io.angles import format_dec_dms, format_ra_hms
+from ...mount import CAUTION
+from ...mount.telescope import FRAME_TEXT, J2000_COORD
+from ..caution import CAUTION_TEXT
+
+
+def sent_place(pointing, coordinate_property: str | None) -> tuple[float, float, str]:
+    """(RA deg, Dec deg, frame text) that Telescope.command sends for this pointing."""
+    if coordinate_property == J2000_COORD:
+        return pointing.ra_j2000_deg, pointing.dec_j2000_deg, FRAME_TEXT[J2000_COORD]
+    return (pointing.ra_apparent_deg, pointing.dec_apparent_deg,
+            FRAME_TEXT["EQUATORIAL_EOD_COORD"])
+
+
+def confirmation_text(pointing, sync: bool, device: str, coordinate_property: str | None,
+                      sun_avoidance_deg: float) -> str:
+    """What the confirmation states: the exact numbers to be sent, the target now, the caution."""
+    ra_deg, dec_deg, frame = sent_place(pointing, coordinate_property)
+    what = (f"Sync {device} to {pointing.name}" if sync
+            else f"Slew {device} to {pointing.name} and track it")
+    lines = [
+        what,
+        "",
+        f"Coordinates to send ({coordinate_property or 'EQUATORIAL_EOD_COORD'}, {frame}):",
+        f"    RA   {format_ra_hms(ra_deg, 2)}   ({ra_deg / 15.0:.8f} h)",
+        f"    Dec  {format_dec_dms(dec_deg, 1)}   ({dec_deg:+.7f}°)",
+        f"{pointing.name} at {pointing.time}: altitude {pointing.alt_deg:.2f}°, azimuth "
+        f"{pointing.az_deg:.2f}°, {pointing.sun_separation_deg:.1f}° from the Sun "
+        f"(avoidance radius {sun_avoidance_deg:g}°).",
+        "",
+    ]
+    if sync:
+        lines.append("A sync moves nothing, but every later slew trusts it: be sure the "
+                     f"telescope is centred on {pointing.name}.")
+    lines += [CAUTION, CAUTION_TEXT]
+    return "\n".join(lines)
+
+
+def report_text(report) -> str:
+    """One paragraph on a finished slew or sync (mount.SlewReport)."""
+    action = report.action.capitalize()
+    if report.aborted:
+        head = f"{action} of {report.target} stopped by ABORT (state {report.final_state})"
+    else:
+        head = f"{action} of {report.target} ended {report.final_state}"
+    parts = [head]
+    if report.residual_arcsec is not None:
+        tolerance = ("within" if report.within_tolerance else "BEYOND") + \
+            f" the tolerance of {report.tolerance_arcsec:g}″"
+        residual = f"residual {report.residual_arcsec:.2f}″ from the target's place now"
+        if report.refined:
+            residual += f" after one refining slew (first {report.first_residual_arcsec:.2f}″)"
+        parts.append(f"{residual}, {tolerance}")
+    if report.reported_ra_deg is not None:
+        parts.append(f"device reports RA {format_ra_hms(report.reported_ra_deg, 2)} Dec "
+                     f"{format_dec_dms(report.reported_dec_deg, 1)}")
+    return "; ".join(parts) + "."
+
+
+class ConfirmMotionDialog(QDialog):
+    """The last question before anything is sent: accept sends, anything else sends nothing."""
+
+    def __init__(self, text: str, sync: bool, parent=None):
+        super().__init__(parent)
+        self.setWindowTitle("Confirm sync" if sync else "Confirm slew")
+        self.message = QLabel(text)
+        self.message.setObjectName("confirmText")
+        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self.message.setWordWrap(True)
+        self.message.setMinimumWidth(520)
+        buttons = QDialogButtonBox()
+        go = buttons.addButton("Sync" if sync else "Slew and track",
+                               QDialogButtonBox.ButtonRole.AcceptRole)
+        cancel = buttons.addButton(QDialogButtonBox.StandardButton.Cancel)
+        go.setAutoDefault(False)
+        cancel.setDefault(True)  # Enter does not move the mount
+        buttons.accepted.connect(self.accept)
+        buttons.rejected.connect(self.reject)
+        layout = QVBoxLayout(self)
+        layout.addWidget(self.message)
+        layout.addWidget(buttons)
+
+    def text(self) -> str:
+        return self.message.text()
