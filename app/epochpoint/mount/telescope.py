@@ -38,9 +38,10 @@ J2000_COORD = "EQUATORIAL_COORD"
 TELESCOPE_INTERFACE_BIT = 1  # INDI DRIVER_INTERFACE: TELESCOPE_INTERFACE = 1 << 0
 FRAME_TEXT = {EOD_COORD: "true equator and equinox of date",
               J2000_COORD: "mean equator and equinox of J2000.0 (geocentric astrometric)"}
-CAUTION = ("Caution: the mount is about to move. Keep people, hands and cables clear of it, "
-           "and keep the optics capped unless you are sure no part of the path passes near "
-           "the Sun.")
+CAUTION = ("Caution: the mount is about to move. Keep people, hands and cables clear of it. "
+           "Never let the telescope point at or near the Sun without a proper solar filter: "
+           "keep the optics capped unless you are sure no part of the path passes near it. "
+           "Follow your observatory's procedures.")
 # A device must show a command in progress (Busy) or its failure (Alert) this soon.
 TAKE_UP_S = 5.0
 # Defs arriving this close together belong to one burst (after getProperties or CONNECT).
