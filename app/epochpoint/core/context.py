@@ -62,6 +62,7 @@ class AstrometryContext:
     sun_distance_au: float
     npb_true_of_date: np.ndarray  # GCRS -> true equator and equinox of date
     c2i: np.ndarray  # GCRS -> CIRS
+    cirs_minus_tod_rad: float  # right ascension in CIRS minus that of date (-equation of origins)
     gast_rad: float
     era_rad: float
     polar_motion_rad: tuple
@@ -99,6 +100,13 @@ def _site_context(site: Site, tt, era_rad: float, gast_rad: float, xp: float, yp
     )
 
 
+def _z_rotation_angle(matrix: np.ndarray) -> float:
+    """How far a rotation about the pole moves right ascensions: the CIRS and the true
+    equator of date share the pole (the CIP), so c2i npb^T is a rotation about z and right
+    ascensions differ by the equation of the origins (IERS Conventions 2010, sec. 5.5.7)."""
+    return float(-np.arctan2(matrix[0, 1], matrix[0, 0]))
+
+
 def make_context(when, site: Site | None = None) -> AstrometryContext:
     """Build the astrometry context for an instant (ISO 8601 UTC string, 'now' or Time)."""
     t = parse_time(when)
@@ -127,6 +135,7 @@ def make_context(when, site: Site | None = None) -> AstrometryContext:
         sun_to_earth_unit=np.asarray(helio_pv[0] / sun_distance, dtype=float),
         sun_distance_au=sun_distance,
         npb_true_of_date=np.asarray(npb), c2i=np.asarray(c2i),
+        cirs_minus_tod_rad=_z_rotation_angle(np.asarray(c2i) @ np.asarray(npb).T),
         gast_rad=gast, era_rad=era, polar_motion_rad=(xp, yp),
         eop_warning=eop_warning, site=site_ctx,
     )

@@ -64,9 +64,15 @@ def site_matrices(site: SiteContext) -> tuple[np.ndarray, np.ndarray]:
     return to_hadec, to_horizon
 
 
-def observed_place(p_cirs: np.ndarray, site: SiteContext) -> ObservedPlace:
-    """Observed place of (3, n) CIRS unit vectors at the context's site (SOFA atioq)."""
+def observed_place(p_cirs: np.ndarray, site: SiteContext,
+                   to_cirs: np.ndarray | None = None) -> ObservedPlace:
+    """Observed place of (3, n) CIRS unit vectors at the context's site (SOFA atioq).
+
+    With `to_cirs` (a 3x3 rotation, e.g. GCRS to CIRS) the vectors are given in that frame
+    and the rotation is folded into the per-instant matrix."""
     to_hadec, to_horizon = site_matrices(site)
+    if to_cirs is not None:
+        to_hadec = to_hadec @ to_cirs
     # Earth rotation and polar motion: CIRS to the local -HA/Dec frame.
     xhd, yhd, zhd = to_hadec @ p_cirs
 

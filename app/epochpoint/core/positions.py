@@ -128,14 +128,18 @@ def _fill_chunk(targets: Targets, ctx: AstrometryContext, out: dict, rows: slice
     p_astrometric, p_deflected, p_gcrs = geocentric_direction(prop.u, prop.parallax, ctx)
     # Rotate into the true equator and equinox of date, and into CIRS.
     p_tod = rotate(ctx.npb_true_of_date, p_gcrs)
-    _store_radec(out, rows, "apparent", p_tod)
-    p_cirs = rotate(ctx.c2i, p_gcrs)
-    _store_radec(out, rows, "cirs", p_cirs)
+    ra_tod, dec_tod = to_spherical(p_tod)
+    np.multiply(ra_tod, RAD_TO_DEG, out=out["ra_apparent"][rows])
+    np.multiply(dec_tod, RAD_TO_DEG, out=out["dec_apparent"][rows])
+    # CIRS shares the pole with the true equator of date: only right ascension shifts.
+    ra_cirs = np.mod(ra_tod + ctx.cirs_minus_tod_rad, 2.0 * np.pi)
+    np.multiply(ra_cirs, RAD_TO_DEG, out=out["ra_cirs"][rows])
+    out["dec_cirs"][rows] = out["dec_apparent"][rows]
 
     observed = None
     if ctx.site is not None:
         # Earth rotation, polar motion, diurnal aberration and refraction at the site.
-        observed = observed_place(p_cirs, ctx.site)
+        observed = observed_place(p_gcrs, ctx.site, to_cirs=ctx.c2i)
         np.multiply(observed.ha, RAD_TO_DEG, out=out["ha"][rows])
         np.multiply(observed.dec, RAD_TO_DEG, out=out["dec_observed"][rows])
         np.multiply(observed.alt, RAD_TO_DEG, out=out["alt"][rows])
