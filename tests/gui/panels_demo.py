@@ -36,3 +36,13 @@ def settle(qtbot, widget, canvas=None) -> None:
     qtbot.wait(20)
     if canvas is not None:
         canvas.draw()
+
+
+def shown_panel(qtbot, panel_class, size, plan):
+    """A chart panel of `panel_class` at `size`, showing `plan`, laid out and drawn."""
+    widget = panel_class()
+    qtbot.addWidget(widget)
+    widget.resize(*size)
+    widget.set_plan(plan)
+    settle(qtbot, widget, widget.canvas)
+    return widget

@@ -23,7 +23,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from astropy import units as u
-from astropy.coordinates import TETE, AltAz, Distance, EarthLocation, SkyCoord, get_sun
+from astropy.coordinates import AltAz, EarthLocation, SkyCoord, get_sun
 from astropy.time import Time
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QDialog
@@ -34,6 +34,7 @@ from epochpoint.gui.caution import CAUTION_TEXT
 from epochpoint.gui.panels.mount_panel import ConfirmMotionDialog, MountPanel
 from epochpoint.mount import CAUTION
 from epochpoint.mount.telescope import angular_distance_arcsec
+from mount_reference import astropy_altaz, astropy_apparent, moving_targets
 
 
 def _mount_fixtures():
@@ -59,7 +60,6 @@ pytestmark = [pytest.mark.indi,
 SITE = Site(latitude=50.0, longitude=8.0, height=300.0, name="Hollow Ridge (invented)")
 LOCATION = EarthLocation.from_geodetic(SITE.longitude * u.deg, SITE.latitude * u.deg,
                                        SITE.height * u.m)
-MOTION = dict(pm_ra_cosdec=420.0, pm_dec=-310.0, parallax=55.0, radial_velocity=-18.0)
 WAIT_MS = 20_000
 SLEW_MS = 40_000
 # The confirmation rounds RA to 0.01 s of time and Dec to 0.1 arcsec (sexagesimal).
@@ -71,12 +71,6 @@ SIDEREAL_ARCSEC_PER_S = 15.041  # the sky's turning (common practice)
 
 
 # ---------------------------------------------------------------------------- sky helpers
-def _targets(ra_deg, dec_deg, names) -> Targets:
-    n = len(names)
-    return Targets.from_columns(ra=ra_deg, dec=dec_deg, epoch=2016.0, name=names,
-                                **{k: np.full(n, v) for k, v in MOTION.items()})
-
-
 def _allowed_ra(dec_deg: float, min_alt_deg=25.0, min_sun_deg=45.0) -> np.ndarray:
     """Right ascensions at dec_deg that astropy finds well up and far from the Sun now."""
     now = Time.now()
@@ -102,27 +96,14 @@ def _pick(panel, dec_deg: float, nearest: bool) -> tuple[float, float]:
 def _forbidden() -> Targets:
     """Beside the Sun (5 deg away) and under the horizon (Dec -60 never rises at +50)."""
     sun = get_sun(Time.now())
-    return _targets([float(sun.ra.deg), float(sun.ra.deg + 180.0) % 360.0],
+    return moving_targets([float(sun.ra.deg), float(sun.ra.deg + 180.0) % 360.0],
                     [float(sun.dec.deg) + 5.0, -60.0], ["Sunward", "Under"])
 
 
 def _astropy_place(ra_deg, dec_deg, when_iso):
     """Apparent place of date (TETE) and refracted alt/az from astropy at when_iso."""
-    star = SkyCoord(ra=ra_deg * u.deg, dec=dec_deg * u.deg,
-                    pm_ra_cosdec=MOTION["pm_ra_cosdec"] * u.mas / u.yr,
-                    pm_dec=MOTION["pm_dec"] * u.mas / u.yr,
-                    distance=Distance(parallax=MOTION["parallax"] * u.mas),
-                    radial_velocity=MOTION["radial_velocity"] * u.km / u.s,
-                    obstime=Time(2016.0, format="jyear", scale="tdb"))
-    when = Time(when_iso.rstrip("Z"), scale="utc")
-    moved = star.apply_space_motion(new_obstime=when)
-    apparent = moved.transform_to(TETE(obstime=when))
-    altaz = moved.transform_to(AltAz(obstime=when, location=LOCATION,
-                                     pressure=SITE.pressure * u.hPa,
-                                     temperature=SITE.temperature * u.deg_C,
-                                     relative_humidity=SITE.humidity,
-                                     obswl=SITE.wavelength * u.micron))
-    return apparent.ra.deg, apparent.dec.deg, altaz.alt.deg, altaz.az.deg
+    return (*astropy_apparent(ra_deg, dec_deg, when_iso),
+            *astropy_altaz(ra_deg, dec_deg, when_iso, SITE))
 
 
 def _sexagesimal(text: str) -> float:
@@ -246,7 +227,7 @@ def test_confirmed_slew_sends_the_stated_coordinates_and_reports(qtbot, panel, i
                                                                   confirmations):
     _connect(qtbot, panel, indi_server)
     ra, _ = _pick(panel, 80.0, nearest=True)
-    _select(qtbot, panel, _targets([ra], [80.0], ["Nearby"]), 0)
+    _select(qtbot, panel, moving_targets([ra], [80.0], ["Nearby"]), 0)
     assert panel.slew_button.isEnabled() and panel.why_label.text() == ""
     qtbot.mouseClick(panel.slew_button, Qt.MouseButton.LeftButton)
     qtbot.waitUntil(lambda: panel.last_report is not None, timeout=SLEW_MS)
@@ -275,7 +256,7 @@ def test_confirmed_sync_moves_nothing_and_sets_the_device_place(qtbot, panel, in
                                                                 confirmations):
     _connect(qtbot, panel, indi_server)
     ra, _ = _pick(panel, 75.0, nearest=True)
-    _select(qtbot, panel, _targets([ra], [75.0], ["Synced"]), 0)
+    _select(qtbot, panel, moving_targets([ra], [75.0], ["Synced"]), 0)
     serial = panel.scope.client.last_serial
     qtbot.mouseClick(panel.sync_button, Qt.MouseButton.LeftButton)
     qtbot.waitUntil(lambda: panel.last_report is not None, timeout=WAIT_MS)
@@ -292,7 +273,7 @@ def test_escape_aborts_a_slew_in_progress(qtbot, panel, indi_server, confirmatio
     _connect(qtbot, panel, indi_server)
     ra, distance_deg = _pick(panel, 60.0, nearest=False)
     assert distance_deg > 20.0, "no long slew available from here"
-    _select(qtbot, panel, _targets([ra], [60.0], ["Faraway"]), 0)
+    _select(qtbot, panel, moving_targets([ra], [60.0], ["Faraway"]), 0)
     _slew_and_wait_busy(qtbot, panel)
     qtbot.wait(800)  # well on its way
     assert panel.slew_button.isEnabled() is False and panel.abort_button.isEnabled()
@@ -320,7 +301,7 @@ def test_server_killed_mid_slew_shows_connection_lost(qtbot, panel, fresh_indi_s
     _connect(qtbot, panel, fresh_indi_server)
     ra, distance_deg = _pick(panel, 60.0, nearest=False)
     assert distance_deg > 20.0, "no long slew available from here"
-    _select(qtbot, panel, _targets([ra], [60.0], ["Faraway"]), 0)
+    _select(qtbot, panel, moving_targets([ra], [60.0], ["Faraway"]), 0)
     _slew_and_wait_busy(qtbot, panel)
     client = panel.scope.client
     fresh_indi_server.kill()
@@ -342,7 +323,7 @@ def test_a_placeholder_site_blocks_pointing(qtbot, panel):
     from epochpoint.gui.document import placeholder_site
 
     panel.set_site(placeholder_site())
-    panel.set_targets(_targets([10.0], [80.0], ["Anything"]))
+    panel.set_targets(moving_targets([10.0], [80.0], ["Anything"]))
     panel.set_selected(0)
     qtbot.waitUntil(lambda: panel.pointing is not None, timeout=WAIT_MS)
     assert "placeholder" in panel.block_reason()

@@ -10,7 +10,7 @@ import pytest
 from PySide6.QtCore import Qt
 
 from epochpoint.gui.panels import SkyDomePanel
-from panels_demo import demo_plan, settle
+from panels_demo import demo_plan, shown_panel
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
@@ -23,12 +23,7 @@ def demo():
 
 @pytest.fixture
 def panel(qtbot, demo):
-    plan, _, _ = demo
-    widget = SkyDomePanel()
-    qtbot.addWidget(widget)
-    widget.resize(900, 760)
-    widget.set_plan(plan)
-    settle(qtbot, widget, widget.canvas)
+    widget = shown_panel(qtbot, SkyDomePanel, (900, 760), demo[0])
     yield widget
     widget.close()
 

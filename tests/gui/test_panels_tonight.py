@@ -13,7 +13,7 @@ import pytest
 from PySide6.QtCore import QPoint, Qt
 
 from epochpoint.gui.panels import TonightPanel
-from panels_demo import demo_plan, settle
+from panels_demo import demo_plan, shown_panel
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
@@ -26,12 +26,7 @@ def demo():
 
 @pytest.fixture
 def panel(qtbot, demo):
-    plan, _, _ = demo
-    widget = TonightPanel()
-    qtbot.addWidget(widget)
-    widget.resize(1100, 720)
-    widget.set_plan(plan)
-    settle(qtbot, widget, widget.canvas)
+    widget = shown_panel(qtbot, TonightPanel, (1100, 720), demo[0])
     yield widget
     widget.close()
 

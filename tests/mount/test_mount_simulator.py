@@ -19,11 +19,12 @@ import time
 import numpy as np
 import pytest
 from astropy import units as u
-from astropy.coordinates import TETE, AltAz, Distance, EarthLocation, SkyCoord, get_sun
+from astropy.coordinates import AltAz, EarthLocation, SkyCoord, get_sun
 from astropy.time import Time
 
 import epochpoint
 from epochpoint.cli.main import main
+from mount_reference import astropy_apparent, moving_targets
 from epochpoint.core.site import Site
 from epochpoint.core.targets import Targets
 from epochpoint.mount import InterlockRefused, Telescope, slew_to_target
@@ -81,28 +82,6 @@ def _pick(scope, dec_deg, nearest: bool):
 
 
 # A moving invented star, so the check covers space motion, parallax and aberration.
-MOTION = dict(pm_ra_cosdec=420.0, pm_dec=-310.0, parallax=55.0, radial_velocity=-18.0)
-
-
-def _targets(ra_deg, dec_deg, names) -> Targets:
-    n = len(names)
-    return Targets.from_columns(ra=ra_deg, dec=dec_deg, epoch=2016.0, name=names,
-                                **{k: np.full(n, v) for k, v in MOTION.items()})
-
-
-def _astropy_apparent(ra_deg, dec_deg, when_iso):
-    """Reference apparent place of date: astropy apply_space_motion, then TETE (geocentre)."""
-    star = SkyCoord(ra=ra_deg * u.deg, dec=dec_deg * u.deg,
-                    pm_ra_cosdec=MOTION["pm_ra_cosdec"] * u.mas / u.yr,
-                    pm_dec=MOTION["pm_dec"] * u.mas / u.yr,
-                    distance=Distance(parallax=MOTION["parallax"] * u.mas),
-                    radial_velocity=MOTION["radial_velocity"] * u.km / u.s,
-                    obstime=Time(2016.0, format="jyear", scale="tdb"))
-    when = Time(when_iso.rstrip("Z"), scale="utc")
-    apparent = star.apply_space_motion(new_obstime=when).transform_to(TETE(obstime=when))
-    return apparent.ra.deg, apparent.dec.deg
-
-
 def test_slew_sends_the_apparent_place_and_the_mount_arrives(indi_server):
     with Telescope.open(indi_server.address) as scope:
         scope.push_site(SITE)
@@ -112,7 +91,7 @@ def test_slew_sends_the_apparent_place_and_the_mount_arrives(indi_server):
         # Targets for this instant around the sky at +80; take the allowed one nearest the
         # mount for a quick slew.
         ra, distance_deg = _pick(scope, 80.0, nearest=True)
-        targets = _targets([ra, (ra + 120) % 360, (ra + 240) % 360], [80.0] * 3,
+        targets = moving_targets([ra, (ra + 120) % 360, (ra + 240) % 360], [80.0] * 3,
                            ["Near", "Other1", "Other2"])
         started = time.monotonic()
         report = slew_to_target(scope, targets, SITE, "Near", wait=True, timeout_s=40.0,
@@ -121,7 +100,7 @@ def test_slew_sends_the_apparent_place_and_the_mount_arrives(indi_server):
         echoed = scope.status()
     assert report.coordinate_property == EOD_COORD
     # What the device took (TARGET_EOD_COORD) against astropy's apparent place of date.
-    expected_ra, expected_dec = _astropy_apparent(ra, 80.0, report.pointing.time)
+    expected_ra, expected_dec = astropy_apparent(ra, 80.0, report.pointing.time)
     commanded_off = angular_distance_arcsec(echoed.target_ra_deg, echoed.target_dec_deg,
                                             expected_ra, expected_dec)
     assert commanded_off < COMMANDED_ARCSEC, f"commanded {commanded_off:.3f} arcsec off"
@@ -138,7 +117,7 @@ def test_sync_sets_the_device_coordinates_without_a_slew(indi_server):
     with Telescope.open(indi_server.address) as scope:
         scope.push_site(SITE)
         ra, _ = _pick(scope, 75.0, nearest=True)
-        targets = _targets([ra], [75.0], ["Synced"])
+        targets = moving_targets([ra], [75.0], ["Synced"])
         serial_before = scope.client.last_serial
         report = slew_to_target(scope, targets, SITE, "Synced", sync=True, wait=True,
                                 timeout_s=10.0)
@@ -152,8 +131,8 @@ def _forbidden(kind: str) -> Targets:
     now, sun, _ = _sky_now()
     if kind == "below the horizon":
         # Dec -60 never rises at latitude +50, and stays over 36 deg from the Sun.
-        return _targets([float(sun.ra.deg + 180.0) % 360.0], [-60.0], ["Under"])
-    return _targets([float(sun.ra.deg)], [float(sun.dec.deg) + 5.0], ["Under"])
+        return moving_targets([float(sun.ra.deg + 180.0) % 360.0], [-60.0], ["Under"])
+    return moving_targets([float(sun.ra.deg)], [float(sun.dec.deg) + 5.0], ["Under"])
 
 
 @pytest.mark.parametrize("sync", [False, True], ids=["slew", "sync"])
@@ -201,7 +180,7 @@ def test_abort_stops_a_slew(indi_server):
         scope.push_site(SITE)
         ra, distance_deg = _pick(scope, 60.0, nearest=False)
         assert distance_deg > 20.0, "no long slew available from here"
-        targets = _targets([ra], [60.0], ["Far"])
+        targets = moving_targets([ra], [60.0], ["Far"])
         outcome = {}
 
         def worker():
