@@ -33,8 +33,9 @@ SITE = Site(latitude=-30.2, longitude=-70.8, height=2200.0, name="Cerro Ventoso 
             interlocks=Interlocks(mount=MountLimits(min_altitude=15.0), sun_avoidance=30.0))
 WHEN = "2025-03-10T04:00:00Z"
 SIDEREAL_ARCSEC_PER_S = 15.041  # Earth's rotation against the stars (common practice)
-META_KEYS = ("time", "frame", "equinox", "corrections", "site", "latitude", "longitude",
-             "interlocks", "tolerance_arcsec", "valid_for_s", "valid_until", "validity_basis")
+META_KEYS = ("time", "frame", "frame_description", "corrections", "site", "latitude",
+             "longitude", "mount_type", "interlocks", "interlocks_checked", "tolerance_arcsec",
+             "valid_for_s", "valid_until", "validity_basis", "validity_scope")
 
 
 def _astropy_altaz(ra_deg, dec_deg):
@@ -90,11 +91,19 @@ def test_every_format_carries_its_metadata(sample, frame, fmt):
     for key in META_KEYS:
         assert key in meta, f"{fmt}/{frame}: {key} missing"
     assert str(meta["frame"]) == frame
-    equinox = str(meta["equinox"])
+    # The frame description is not called "equinox" (an equinox is one date, not a frame).
+    assert "equinox" not in meta
+    description = str(meta["frame_description"])
     expected_words = {"apparent": "true equator and equinox of date 2025-03-10T04:00:00",
                       "icrs": "ICRS, epoch 2025-03-10T04:00:00",
                       "observed": "refracted with"}[frame]
-    assert expected_words in equinox
+    assert expected_words in description
+    # The file says the interlocks were checked at the export instant, for the destination
+    # only, and that the validity covers coordinate accuracy only.
+    checked = str(meta["interlocks_checked"])
+    assert "export instant 2025-03-10T04:00:00" in checked and "not the path" in checked
+    assert str(meta["validity_scope"]).startswith("coordinate accuracy only")
+    assert str(meta["mount_type"]) == "fork equatorial"  # MountLimits' default type
 
 
 def test_votable_parses_with_astropy_and_has_info_and_param(sample):

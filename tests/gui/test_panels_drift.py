@@ -120,7 +120,8 @@ def test_set_tolerance_from_outside_does_not_emit(panel, qtbot):
 
 def test_ellipse_text_equals_error_ellipse_at(panel, qtbot, targets):
     epoch = Time(INSTANT).tdb.jyear
-    major, minor, pa = (v[1] for v in error_ellipse_at(targets, epoch).values())
+    ellipse = error_ellipse_at(targets, epoch)
+    major, minor, pa = (ellipse[k][1] for k in ("error_major", "error_minor", "error_pa"))
     panel.set_selected(1)
     text = panel.ellipse_text.text()
     numbers = [float(x) for x in re.findall(r"(-?\d+\.\d+)", text)]

@@ -134,12 +134,13 @@ def test_hover_reads_time_altitude_and_airmass(panel, qtbot):
     qtbot.mouseMove(panel.canvas, pos)
     qtbot.waitUntil(lambda: str(plan.windows.names[index]) in panel.readout.text(), timeout=2000)
     text = panel.readout.text()
-    # The time under the cursor, local (site's IANA zone) and UTC, to the pixel's minute.
+    # The time under the cursor in the site's IANA zone, labelled with the zone's own
+    # abbreviation, then UTC, to the pixel's minute (reference: zoneinfo).
     x_px = pos.x() * (panel.canvas.device_pixel_ratio or 1.0)
     x_data = panel.ax.transData.inverted().transform((x_px, 0.0))[0]
     utc = mdates.num2date(x_data).astimezone(dt.timezone.utc)
     local = utc.astimezone(ZoneInfo(plan.site.timezone))
-    assert f"{local:%H:%M} local ({utc:%H:%M} UTC)" in text
+    assert f"{local:%H:%M} {local.tzname()} ({utc:%H:%M} UTC)" in text
     shown_alt = float(re.search(r"altitude ([\d.]+)°", text).group(1))
     assert shown_alt == pytest.approx(alt, abs=0.3)
     # Airmass by Kasten & Young (1989, Applied Optics 28, 4735), written out here.

@@ -8,7 +8,8 @@ import numpy as np
 import pytest
 from hypothesis import given, strategies as st
 
-from epochpoint.io import format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra
+from epochpoint.io import (format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra,
+                           sidereal_time_text)
 
 
 @pytest.mark.parametrize("text, expected_deg", [
@@ -102,3 +103,23 @@ def test_dec_format_then_parse_is_within_half_a_digit(dec_deg):
     parsed = parse_dec(format_dec_dms(dec_deg, 2))
     assert parsed == pytest.approx(dec_deg, abs=0.005 / 3600 + 1e-12)
     assert math.copysign(1.0, parsed) == math.copysign(1.0, dec_deg) or abs(dec_deg) < 0.005 / 3600
+
+
+@pytest.mark.parametrize("hours, expected", [
+    (19.5, "LST 19:30:00.0"),            # 19.5 h = 19 h 30 min (hand arithmetic)
+    (-1.0, "LST 23:00:00.0"),            # a negative sidereal time wraps into 0..24 h, no sign
+    (25.25, "LST 01:15:00.0"),           # above 24 h wraps too
+    (0.0, "LST 00:00:00.0"),
+    (23.99999, "LST 00:00:00.0"),        # 23:59:59.964 rounds to 24:00:00.0, which is 0 h
+    (6.0 + 45 / 60 + 8.94 / 3600, "LST 06:45:08.9"),
+    (float("nan"), "LST --"),
+])
+def test_sidereal_time_text_hand_worked(hours, expected):
+    assert sidereal_time_text(hours) == expected
+
+
+@given(st.floats(min_value=-48.0, max_value=48.0, allow_nan=False))
+def test_sidereal_time_text_is_unsigned_and_below_24h(hours):
+    text = sidereal_time_text(hours)
+    assert text.startswith("LST ") and "-" not in text and "+" not in text
+    assert 0.0 <= parse_ra(text[4:]) / 15.0 < 24.0

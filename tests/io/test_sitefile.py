@@ -67,7 +67,9 @@ def test_toml_site_and_reserved_tables(write_file):
 def test_toml_minimal_site_uses_defaults(write_file):
     path = write_file("min.toml", "[site]\nlatitude = 10\nlongitude = 20\n")
     site = read_site(path)
-    assert site.height == 0.0 and site.timezone == "UTC"
+    # No zone given: the one holding 10 N, 20 E, in Chad (Africa/Ndjamena; from memory).
+    assert site.height == 0.0 and site.timezone == "Africa/Ndjamena"
+    assert site.timezone_from_coordinates
     assert site.pressure == pytest.approx(standard_pressure_hpa(0.0))
     assert site.pressure == pytest.approx(1013.25)  # ICAO sea-level pressure (ISO 2533:1975)
 

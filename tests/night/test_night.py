@@ -176,15 +176,21 @@ def test_every_stretch_below_a_level_on_an_odd_night_matches_astropy():
 def test_a_window_cut_through_a_dark_stretch_clips_it_and_keeps_the_lowest_point():
     """At longitude 180 the Sun's lowest point falls near 12:00 UTC, so a UTC noon-to-noon
     window starts and ends in darkness at +89.5 on 2024-03-16 (the Sun near -1.6 deg then,
-    below the -50' level): the stretches are clipped at both ends, and the night's sunset and
-    sunrise bound the stretch that holds the lowest point."""
+    below the -50' level): the stretches are clipped at both ends. The night of the date runs
+    from local mean noon instead (00:00 UTC at longitude 180), so its sunset and sunrise bound
+    the stretch that holds the lowest point, and that point lies inside the night."""
     site = Site(89.5, 180.0, 0.0, name="near the pole, date line", timezone="UTC")
+    start = Time("2024-03-16T12:00:00", scale="utc")
+    end = Time("2024-03-17T12:00:00", scale="utc")
+    stretches = sun_below_intervals(site, start, end, -50.0 / 60.0)
+    assert stretches[0][0] == start and stretches[-1][1] == end
     night = night_boundaries(site, "2024-03-16")
-    stretches = sun_below_intervals(site, night.window_start, night.window_end, -50.0 / 60.0)
-    assert stretches[0][0] == night.window_start and stretches[-1][1] == night.window_end
-    assert night.spans["sun"] in stretches
+    # Local mean noon at longitude 180 (taken as -180: the date's noon at 24:00 UTC).
+    assert abs((night.window_start - Time("2024-03-17T00:00:00", scale="utc")).sec) < 1e-3
     lowest = night.sun_lowest_time
-    holding = [s for s in stretches if s[0] <= lowest <= s[1]]
+    night_stretches = sun_below_intervals(site, night.window_start, night.window_end,
+                                          -50.0 / 60.0)
+    holding = [s for s in night_stretches if s[0] <= lowest <= s[1]]
     assert holding == [night.spans["sun"]]
     # The Sun's lowest point by astropy on a 1-minute grid, to the grid step.
     grid = night.window_start + np.arange(0.0, 24 * 60 + 1, 1.0) * u.min
@@ -249,12 +255,13 @@ def test_to_json_has_exactly_the_eight_events_as_utc_z_strings(nights):
         assert parsed.tzinfo is not None
 
 
-def test_the_window_runs_from_local_noon_to_local_noon_across_a_clock_change():
-    """Central European summer time begins on the last Sunday of March at 01:00 UTC
-    (EU Directive 2000/84/EC): 2024-03-31. The night of 2024-03-30 in Amsterdam runs from
-    11:00 UTC (noon CET) to 10:00 UTC (noon CEST): 23 hours."""
+def test_the_window_runs_from_local_mean_noon_whatever_the_clock_does():
+    """The night of a date runs from local mean solar noon, 12:00 UTC minus longitude/15 h
+    (common practice), to the next one: 24 hours even across the start of Central European
+    summer time (last Sunday of March at 01:00 UTC, EU Directive 2000/84/EC: 2024-03-31).
+    At 5 deg east: 11:40 UTC on 2024-03-30 to 11:40 UTC on 2024-03-31."""
     start, end = night_window(HOLLAND, dt.date(2024, 3, 30))
-    assert start.isot == "2024-03-30T11:00:00.000" and end.isot == "2024-03-31T10:00:00.000"
+    assert start.isot == "2024-03-30T11:40:00.000" and end.isot == "2024-03-31T11:40:00.000"
     night = night_boundaries(HOLLAND, "2024-03-30")
     assert night.window_start == start and night.window_end == end
     assert start < night.sunset < night.sunrise < end
@@ -263,6 +270,5 @@ def test_the_window_runs_from_local_noon_to_local_noon_across_a_clock_change():
 def test_bad_dates_and_zones_are_one_line_errors():
     with pytest.raises(TimeInputError, match="date '2024-13-01' is not a calendar date"):
         night_boundaries(CHILE, "2024-13-01")
-    nowhere = Site(10.0, 10.0, timezone="Mars/Olympus_Mons")
     with pytest.raises(SiteError, match="site timezone: 'Mars/Olympus_Mons'"):
-        night_boundaries(nowhere, "2024-06-21")
+        Site(10.0, 10.0, timezone="Mars/Olympus_Mons")

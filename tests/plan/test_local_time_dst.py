@@ -32,7 +32,8 @@ timezone = "Europe/Madrid"
 """
 # (night, offset in the evening, offset in the morning), hours east of UTC.
 NIGHTS = [("2024-03-30", 1, 2), ("2024-10-26", 2, 1)]
-LOCAL_AND_UTC = re.compile(r"(\d\d):(\d\d) local \((\d\d):(\d\d) UTC\)")
+# "HH:MM ABBR (HH:MM UTC)": local time with the zone's abbreviation in force, then UTC.
+LOCAL_AND_UTC = re.compile(r"(\d\d):(\d\d) (\S+) \((\d\d):(\d\d) UTC\)")
 WINDOW = re.compile(r"(\d\d:\d\d)-(\d\d:\d\d)")
 
 
@@ -51,6 +52,12 @@ def change_instant(night: str) -> dt.datetime:
 
 def local_hhmm(iso: str) -> str:
     return f"{utc(iso).astimezone(MADRID):%H:%M}"
+
+
+def local_label(iso: str) -> str:
+    """'HH:MM ABBR (HH:MM UTC)' from zoneinfo (the reference for the plan's labels)."""
+    local = utc(iso).astimezone(MADRID)
+    return f"{local:%H:%M} {local.tzname()} ({utc(iso):%H:%M} UTC)"
 
 
 @pytest.fixture(scope="module", params=NIGHTS, ids=[n for n, _, _ in NIGHTS])
@@ -88,9 +95,10 @@ def test_night_boundaries_use_the_offset_in_force(night_outputs):
     offsets = set()
     for key, iso in data["night"].items():
         line = next(l for l in table.splitlines() if l.strip().startswith(key.replace("_", " ")))
-        (lh, lm, uh, um), = LOCAL_AND_UTC.findall(line)
+        (lh, lm, abbr, uh, um), = LOCAL_AND_UTC.findall(line)
         assert f"{uh}:{um}" == f"{utc(iso):%H:%M}", line
         assert f"{lh}:{lm}" == local_hhmm(iso), (key, line)
+        assert abbr == utc(iso).astimezone(MADRID).tzname(), (key, line)
         shown = ((int(lh) * 60 + int(lm)) - (int(uh) * 60 + int(um))) % (24 * 60) / 60
         expected = evening if utc(iso) < change else morning
         assert shown == expected, (key, line, expected)
@@ -106,7 +114,7 @@ def test_target_windows_and_order_in_local_time(night_outputs):
     for target in data["targets"]:
         row = next(l for l in lines if l.startswith(target["name"] + " "))
         transit = target["transit"]
-        assert f"{local_hhmm(transit)} local ({utc(transit):%H:%M} UTC)" in row, row
+        assert local_label(transit) in row, row
         if not target["windows"]:
             continue
         expected = [(local_hhmm(s), local_hhmm(e)) for s, e in target["windows"]]
@@ -115,7 +123,7 @@ def test_target_windows_and_order_in_local_time(night_outputs):
     assert checked >= 5
     crossing = 0
     for entry in data["schedule"]:
-        start_text = f"{local_hhmm(entry['start'])} local ({utc(entry['start']):%H:%M} UTC)"
+        start_text = local_label(entry["start"])
         assert any(start_text in l and entry["name"] in l for l in lines), start_text
         crossing += utc(entry["start"]) >= change_instant(night)
     assert 0 < crossing < len(data["schedule"]), "blocks on both sides of the change"

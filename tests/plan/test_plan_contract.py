@@ -120,7 +120,9 @@ def test_table_shows_local_time_and_utc(capsys, demo):
     zone = ZoneInfo("America/Argentina/Catamarca")
     for key, iso in data["night"].items():
         instant = utc(iso)
-        expected = (f"{instant.astimezone(zone):%H:%M} local ({instant:%H:%M} UTC)")
+        local = instant.astimezone(zone)
+        # The zone's abbreviation (here its offset, "-03") labels the local time, never "local".
+        expected = f"{local:%H:%M} {local.tzname()} ({instant:%H:%M} UTC)"
         line = next(l for l in out.splitlines() if l.strip().startswith(key.replace("_", " ")))
         assert expected in line, (key, line, expected)
 

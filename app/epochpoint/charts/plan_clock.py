@@ -6,15 +6,11 @@ Plans count time in seconds from `plan.t_ref` (UTC); people read the site's loca
 from __future__ import annotations
 
 import datetime as dt
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
+from ..core.zones import clock_label, zone_or_utc
 
-def site_zone(name: str):
-    """The site's time zone, or UTC when the name is unknown."""
-    try:
-        return ZoneInfo(name)
-    except (ZoneInfoNotFoundError, ValueError):
-        return dt.timezone.utc
+# The site's time zone, or UTC when the name is unknown.
+site_zone = zone_or_utc
 
 
 def utc_datetime(plan, seconds: float) -> dt.datetime:
@@ -34,7 +30,6 @@ def seconds_of(plan, instant: dt.datetime) -> float:
 
 
 def clock_text(plan, seconds: float, with_seconds: bool = False) -> str:
-    """'22:41 local (01:41 UTC)' for an instant of the plan."""
-    fmt = "%H:%M:%S" if with_seconds else "%H:%M"
-    local = local_datetime(plan, seconds)
-    return f"{local:{fmt}} local ({utc_datetime(plan, seconds):{fmt}} UTC)"
+    """'22:41 -03 (01:41 UTC)' for an instant of the plan: local time with the zone's
+    abbreviation or offset, then UTC."""
+    return clock_label(utc_datetime(plan, seconds), plan.site.timezone, with_seconds)

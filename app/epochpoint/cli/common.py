@@ -7,6 +7,8 @@ import warnings
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from ..core.site import Site
+from ..core.zones import clock_label
+from . import checks
 
 
 def add_targets_argument(parser) -> None:
@@ -25,13 +27,17 @@ def add_site_arguments(parser) -> None:
     parser.add_argument("--site", required=True, metavar="SITE",
                         help="site file (TOML) or LAT,LON,HEIGHT in degrees (east-positive) and "
                              "metres; write --site=-24.6,-70.4,2635 for southern sites")
-    parser.add_argument("--pressure", type=float, metavar="HPA",
+    parser.add_argument("--pressure", type=checks.number(), metavar="HPA",
                         help="air pressure in hPa (default: the site's; 0 turns refraction off)")
-    parser.add_argument("--temperature", type=float, metavar="C", help="air temperature, deg C")
-    parser.add_argument("--humidity", type=float, metavar="FRAC",
+    parser.add_argument("--temperature", type=checks.number(), metavar="C", help="air temperature, deg C")
+    parser.add_argument("--humidity", type=checks.number(), metavar="FRAC",
                         help="relative humidity, 0..1")
-    parser.add_argument("--wavelength", type=float, metavar="UM",
+    parser.add_argument("--wavelength", type=checks.number(), metavar="UM",
                         help="effective wavelength in micrometres")
+    parser.add_argument("--timezone", metavar="NAME",
+                        help="IANA time zone for local times, e.g. America/Phoenix (default: "
+                             "the site file's, else the zone holding the site's coordinates); "
+                             "times are labelled only, the night is fixed by the longitude")
 
 
 def add_output_arguments(parser, formats) -> None:
@@ -56,20 +62,66 @@ def load_site(args) -> Site:
     from ..io import read_site
 
     site = read_site(args.site)
+    zone = getattr(args, "timezone", None)
+    if zone:
+        site = _with_zone_option(site, zone)
     return site.with_weather(pressure=args.pressure, temperature=args.temperature,
                              humidity=args.humidity, wavelength=args.wavelength)
 
 
-def local_time_text(utc_iso: str, timezone: str) -> str:
-    """The site's local civil time for an ISO 8601 UTC instant, with the zone abbreviation."""
-    instant = dt.datetime.fromisoformat(utc_iso.replace("Z", "+00:00"))
+def _with_zone_option(site: Site, name: str) -> Site:
+    """--timezone applied: it replaces a zone found from the coordinates; a site file's own
+    `timezone` wins (with a warning saying so)."""
+    try:
+        ZoneInfo(name)
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        raise ValueError(f"--timezone {name!r} is not an IANA time zone name "
+                         "(e.g. America/Phoenix, Europe/Madrid, Etc/GMT+10, UTC)") from None
+    if not site.timezone_from_coordinates:
+        if name != site.timezone:
+            warnings.warn(f"--timezone {name} ignored: the site file names {site.timezone}")
+        return site
+    return site.with_timezone(name)
+
+
+def utc_datetime(utc_iso: str) -> dt.datetime:
+    """An aware UTC datetime from ISO 8601 text. datetime has no second 60: a leap second
+    (23:59:60.x) is shown as the last microsecond before it, 23:59:59.999999."""
+    text = utc_iso.replace("Z", "+00:00")
+    if text[17:19] == "60":
+        return dt.datetime.fromisoformat(text[:17] + "59.999999" + text[text.index("+", 17):])
+    return dt.datetime.fromisoformat(text)
+
+
+def local_datetime(utc_iso: str, timezone: str) -> dt.datetime:
+    """The site's local civil time (aware datetime) for an ISO 8601 UTC instant."""
+    instant = utc_datetime(utc_iso)
     try:
         zone = ZoneInfo(timezone)
     except (ZoneInfoNotFoundError, ValueError):
         warnings.warn(f"unknown time zone {timezone!r}; showing UTC")
         zone = dt.timezone.utc
-    local = instant.astimezone(zone)
+    return instant.astimezone(zone)
+
+
+def local_time_text(utc_iso: str, timezone: str) -> str:
+    """'YYYY-MM-DD HH:MM:SS ABBR': local civil time with the zone's abbreviation or offset."""
+    local = local_datetime(utc_iso, timezone)
     return f"{local:%Y-%m-%d %H:%M:%S} {local.tzname()}"
+
+
+def local_clock_text(utc_iso: str | None, timezone: str) -> str:
+    """'HH:MM ABBR (HH:MM UTC)' for people, or 'none' when there is no instant."""
+    if utc_iso is None:
+        return "none"
+    return clock_label(utc_datetime(utc_iso), timezone)
+
+
+def zone_line(site: Site) -> str:
+    """One line naming the zone the local times are shown in, and where it came from."""
+    origin = ("found from the site's coordinates" if site.timezone_from_coordinates
+              else "from the site")
+    return f"Local times: {site.timezone} ({origin})"
 
 
 def emit(table, args, people_formatter) -> None:
@@ -87,3 +139,12 @@ def emit(table, args, people_formatter) -> None:
     text = write_result(dict(table), table.meta, args.output, args.format, units=table.units)
     if args.output is None and text is not None:
         sys.stdout.write(text if text.endswith("\n") else text + "\n")
+
+
+def emit_chunks(chunks, args) -> None:
+    """Write a result computed chunk by chunk (`chunks` has names, meta and units, and yields
+    column chunks) in a machine format to --output or standard output, a chunk at a time."""
+    from ..io.resultstream import stream_result
+
+    stream_result(chunks, chunks.names, chunks.meta, args.output, args.format,
+                  units=chunks.units, out=sys.stdout)

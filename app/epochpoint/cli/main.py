@@ -8,6 +8,7 @@ import sys
 import warnings
 
 from ..core.timescale import StaleEarthOrientation
+from ..io.atomic import termination_cleanup
 from . import drift_cmd, export_cmd, gui_cmd, mount_cmd, plan_cmd, positions_cmd
 
 EXIT_INPUT_ERROR = 2
@@ -46,7 +47,9 @@ def main(argv=None) -> int:
     warnings.filterwarnings("ignore", module="erfa")
     warnings.filterwarnings("ignore", module="astropy")
     try:
-        return COMMANDS[args.command].run(args) or 0
+        # SIGTERM removes any half-written output before the process ends (status 143).
+        with termination_cleanup():
+            return COMMANDS[args.command].run(args) or 0
     except (ValueError, OSError) as exc:
         # InputError, SiteError, TargetError and TimeInputError are ValueErrors with
         # one-line messages that name the file, row and column where they know them.

@@ -6,11 +6,13 @@ refused, did not end in time or ended beyond the tolerance; 130 interrupted (abo
 """
 from __future__ import annotations
 
+import argparse
 import sys
 from datetime import datetime, timezone
 
 from ..mount.errors import ConnectionLost, InterlockRefused, MountError
-from . import common
+from ..mount.options import MAX_RESIDUAL_ARCSEC, MAX_WAIT_S
+from . import checks, common
 
 EXIT_REFUSED = 3
 EXIT_CONNECTION = 4
@@ -24,22 +26,34 @@ def add_parser(sub) -> None:
     actions = p.add_subparsers(dest="mount_action", required=True, metavar="ACTION",
                                parser_class=type(p))
     slew = actions.add_parser("slew", help="slew (or sync) to a target's place of date",
+                              usage="epochpoint mount slew [-h] TARGETS NAME --site SITE "
+                                    "--indi HOST:PORT [options]",
                               description="Slew the mount to target NAME's apparent place of "
                                           "date (or its J2000 astrometric place when the device "
-                                          "only takes J2000), tracking; --sync syncs instead.")
-    slew.add_argument("name", metavar="NAME", help="the target's name in the list")
-    slew.add_argument("--targets", required=True, metavar="FILE",
-                      help="target list: CSV, ECSV or VOTable")
+                                          "only takes J2000), tracking; --sync syncs instead. "
+                                          "Every option is checked before the server is "
+                                          "contacted.")
+    # TARGETS NAME, like the other commands; the earlier `NAME --targets FILE` still works.
+    slew.add_argument("places", nargs="*", metavar="TARGETS NAME",
+                      help="the target list (CSV, ECSV or VOTable) and the target's name in it")
+    slew.add_argument("--targets", dest="targets_option", metavar="FILE", help=argparse.SUPPRESS)
     common.add_site_arguments(slew)
     _add_server_arguments(slew)
     slew.add_argument("--sync", action="store_true",
                       help="sync the mount's coordinates to the target instead of moving")
     slew.add_argument("--wait", action="store_true",
                       help="follow the motion until it ends, then refine once if needed")
-    slew.add_argument("--timeout", type=float, default=120.0, metavar="S",
-                      help="seconds to wait for the motion to end (default 120)")
-    slew.add_argument("--tolerance", type=float, default=2.0, metavar="ARCSEC",
-                      help="largest accepted pointing residual (default 2)")
+    slew.add_argument("--timeout", default=120.0, metavar="S",
+                      type=checks.number(0.0, MAX_WAIT_S, lo_open=True, unit="s"),
+                      help=f"seconds to wait for the motion to end (default 120, at most "
+                           f"{MAX_WAIT_S:g})")
+    residual = checks.number(0.0, MAX_RESIDUAL_ARCSEC, lo_open=True, unit="arcsec")
+    slew.add_argument("--max-residual", type=residual, default=2.0, metavar="ARCSEC",
+                      help="largest accepted distance between where the mount reports it "
+                           "points and the target, after the motion (default 2)")
+    # The earlier spelling, kept working but no longer shown.
+    slew.add_argument("--tolerance", type=residual, dest="max_residual",
+                      default=argparse.SUPPRESS, help=argparse.SUPPRESS)
     slew.add_argument("--push-site", action="store_true",
                       help="first send our site and clock to the device")
 
@@ -57,7 +71,8 @@ def _add_server_arguments(parser) -> None:
                         help="the INDI server, e.g. localhost:7624")
     parser.add_argument("--device", metavar="NAME",
                         help="the telescope device (default: the only telescope there)")
-    parser.add_argument("--connect-timeout", type=float, default=10.0, metavar="S",
+    parser.add_argument("--connect-timeout", default=10.0, metavar="S",
+                        type=checks.number(0.0, MAX_WAIT_S, lo_open=True, unit="s"),
                         help="seconds to wait for the server and the device (default 10)")
 
 
@@ -84,8 +99,6 @@ def _say(text: str) -> None:
 def _open(args, connect_device: bool = True):
     from ..mount.telescope import Telescope
 
-    if not args.connect_timeout > 0:
-        raise ValueError("--connect-timeout must be a positive number of seconds")
     return Telescope.open(args.indi, args.device, timeout_s=args.connect_timeout,
                           connect_device=connect_device, notify=_say)
 
@@ -94,26 +107,25 @@ def _slew(args) -> int:
     from ..io import read_targets
     from ..mount.telescope import checked_pointing, slew_to_target
 
-    if not (args.timeout > 0 and args.tolerance > 0):
-        raise ValueError("--timeout and --tolerance must be positive numbers")
-    targets = read_targets(args.targets)
+    targets_path, name = _targets_and_name(args)
+    targets = read_targets(targets_path)
     site = common.load_site(args)
     # Refuse before touching the server: nothing is sent for a forbidden target.
-    checked_pointing(targets, site, args.name)
+    checked_pointing(targets, site, name)
     with _open(args) as scope:
         _say("\n".join(_status_lines(scope.status(), site)))
         if args.push_site:
             scope.push_site(site, notify=_say)
+        # A failure once the motion was sent comes back with an abort sent and the words
+        # "may still be moving" (slew_to_target does both).
         try:
-            report = slew_to_target(scope, targets, site, args.name, sync=args.sync,
+            report = slew_to_target(scope, targets, site, name, sync=args.sync,
                                     wait=args.wait, timeout_s=args.timeout,
-                                    tolerance_arcsec=args.tolerance, notify=_say)
+                                    tolerance_arcsec=args.max_residual, notify=_say)
         except KeyboardInterrupt:
             _say("Interrupted: aborting the motion.")
             scope.abort()
             return 130
-        except ConnectionLost as err:
-            raise ConnectionLost(f"{err}; the mount may still be moving: check it") from None
     if report.residual_arcsec is None:
         _say(f"Sent; not waiting for the {report.action} to end.")
         return 0
@@ -122,9 +134,21 @@ def _slew(args) -> int:
          + (f"; {report.first_residual_arcsec:.2f} arcsec before refining)"
             if report.refined else ")"))
     if not report.within_tolerance:
-        return _fail(f"the mount ended {report.residual_arcsec:.2f} arcsec from {args.name}, "
-                     f"beyond the tolerance of {args.tolerance:g} arcsec", EXIT_MOUNT)
+        return _fail(f"the mount ended {report.residual_arcsec:.2f} arcsec from {name}, "
+                     f"beyond the largest accepted residual of {args.max_residual:g} arcsec",
+                     EXIT_MOUNT)
     return 0
+
+
+def _targets_and_name(args) -> tuple[str, str]:
+    """(target list, target name) from `TARGETS NAME` or the older `NAME --targets FILE`."""
+    given = list(args.places)
+    if args.targets_option is not None:
+        given.insert(0, args.targets_option)
+    if len(given) != 2:
+        raise ValueError("mount slew needs the target list and the target's name: "
+                         "epochpoint mount slew TARGETS NAME --site SITE --indi HOST:PORT")
+    return given[0], given[1]
 
 
 def _status(args) -> int:
@@ -145,6 +169,7 @@ def _abort(args) -> int:
 
 
 def _status_lines(status, site) -> list[str]:
+    from ..core.limits import MOUNT_TYPE_NAMES
     from ..io import format_dec_dms, format_ra_hms
     from ..mount.telescope import FRAME_TEXT
 
@@ -159,11 +184,12 @@ def _status_lines(status, site) -> list[str]:
     if shown:
         lines.append("Mount        " + ", ".join(shown))
     if status.latitude is not None:
-        lines.append(f"Device site  lat {status.latitude:+.5f}, lon {status.longitude:+.5f}, "
-                     f"{status.height or 0.0:.0f} m")
+        lines.append(f"Device site  lat {status.latitude:+.5f} deg, "
+                     f"lon {status.longitude:+.5f} deg, {status.height or 0.0:.0f} m")
     if site is not None:
-        lines.append(f"Our site     lat {site.latitude:+.5f}, lon {site.longitude:+.5f}, "
+        lines.append(f"Our site     lat {site.latitude:+.5f} deg, lon {site.longitude:+.5f} deg, "
                      f"{site.height:.0f} m")
+        lines.append(f"Our mount    {MOUNT_TYPE_NAMES[site.interlocks.mount.mount_type]}")
     if status.time_utc is not None:
         offset = "" if status.utc_offset_h is None else f", offset {status.utc_offset_h:+.2f} h"
         lines.append(f"Device clock TIME_UTC {status.time_utc}{offset} (as last reported)")

@@ -7,10 +7,12 @@ import sys
 import numpy as np
 
 from ..core.plan import DARKNESS_LEVELS, SCHEDULE_SECONDS, plan
-from . import common
+from . import checks, common
 from .people import PeopleColumn, people_table
 
 FORMATS = ["table", "json", "csv"]
+# Longest schedule search the command line allows (an hour; the default takes 0.3 s).
+MAX_SCHEDULE_SECONDS = 3600.0
 
 
 def add_parser(sub) -> None:
@@ -23,22 +25,25 @@ def add_parser(sub) -> None:
     common.add_site_arguments(p)
     p.add_argument("--night", required=True, metavar="YYYY-MM-DD",
                    help="local date of the evening the night starts")
-    p.add_argument("--min-altitude", type=float, metavar="DEG",
+    p.add_argument("--min-altitude", type=checks.number(0.0, 90.0, unit="deg"), metavar="DEG",
                    help="lowest observed altitude (default: the mount's minimum altitude)")
-    p.add_argument("--max-airmass", type=float, metavar="X", help="highest airmass allowed")
+    p.add_argument("--max-airmass", type=checks.number(1.0), metavar="X",
+                   help="highest airmass allowed (1 or more)")
     p.add_argument("--darkness", choices=DARKNESS_LEVELS, default="astronomical",
                    help="how dark the sky must be (default astronomical: Sun below -18 deg)")
-    p.add_argument("--moon-separation", type=float, default=0.0, metavar="DEG",
+    p.add_argument("--moon-separation", type=checks.number(0.0, 180.0, unit="deg"), default=0.0,
+                   metavar="DEG",
                    help="smallest distance from the Moon while it is up (default 0: none)")
     p.add_argument("--moon-scaled", action="store_true",
                    help="scale the Moon distance with the Moon's illuminated fraction")
-    p.add_argument("--schedule-seconds", type=float, default=SCHEDULE_SECONDS, metavar="S",
+    p.add_argument("--schedule-seconds", type=checks.number(0.0, MAX_SCHEDULE_SECONDS, unit="s"),
+                   default=SCHEDULE_SECONDS, metavar="S",
                    help=f"time the scheduler may spend improving the order "
                         f"(default {SCHEDULE_SECONDS:g})")
     common.add_output_arguments(p, FORMATS)
     p.add_argument("--chart", metavar="FILE.png",
                    help="also draw observed altitude against time to a PNG file")
-    p.add_argument("--chart-targets", type=int, default=12, metavar="N",
+    p.add_argument("--chart-targets", type=checks.count(1), default=12, metavar="N",
                    help="how many targets the chart shows (highest priority first)")
 
 
@@ -72,11 +77,26 @@ def _write(args, text: str) -> None:
 
 
 def _local(result, iso: str | None) -> str:
-    """'HH:MM local (HH:MM UTC)' for an ISO instant, or 'none'."""
-    if iso is None:
-        return "none"
-    local = common.local_time_text(iso, result.site.timezone)
-    return f"{local[11:16]} local ({iso[11:16]} UTC)"
+    """'HH:MM ABBR (HH:MM UTC)' for an ISO instant (the site zone's abbreviation or offset),
+    or 'none'."""
+    return common.local_clock_text(iso, result.site.timezone)
+
+
+def _window_text(result, start_s: float, end_s: float) -> str:
+    """'HH:MM-HH:MM' in the site's zone (the column header names the zone)."""
+    start = common.local_datetime(result.iso(start_s), result.site.timezone)
+    end = common.local_datetime(result.iso(end_s), result.site.timezone)
+    return f"{start:%H:%M}-{end:%H:%M}"
+
+
+def _zone_abbreviations(result) -> str:
+    """The zone's abbreviation(s) in force over the night, e.g. 'MST' or 'CET/CEST'."""
+    names = []
+    for t in (result.night.window_start, result.night.window_end):
+        name = common.local_datetime(t.isot + "Z", result.site.timezone).tzname()
+        if name not in names:
+            names.append(name)
+    return "/".join(names)
 
 
 def _schedule_csv(result, data) -> str:
@@ -96,7 +116,8 @@ def _schedule_csv(result, data) -> str:
 def _people(result, data) -> str:
     """The plan for reading before dusk: the night, the Moon, windows, then the order."""
     night, moon = data["night"], data["moon"]
-    lines = [f"Night of {data['date']} at {data['site']} ({data['darkness']} darkness)", ""]
+    lines = [f"Night of {data['date']} at {data['site']} ({data['darkness']} darkness)",
+             common.zone_line(result.site), ""]
     for key in night:
         lines.append(f"  {key.replace('_', ' '):<28} {_local(result, night[key])}")
     lit = moon.get("illumination")
@@ -104,8 +125,7 @@ def _people(result, data) -> str:
               f"; rises {_local(result, moon.get('moonrise'))}, "
               f"sets {_local(result, moon.get('moonset'))}", ""]
     w = result.windows
-    window_text = np.array(["; ".join(f"{_local(result, result.iso(s))[:5]}-"
-                                      f"{_local(result, result.iso(e))[:5]}" for s, e in win)
+    window_text = np.array(["; ".join(_window_text(result, s, e) for s, e in win)
                             for win in w.windows], dtype=object)
     table = {"name": w.names, "priority": result.priority,
              "transit": np.array([_local(result, t["transit"]) for t in data["targets"]],
@@ -114,8 +134,8 @@ def _people(result, data) -> str:
              "reason": np.array([r or "" for r in w.reason], dtype=object)}
     columns = [PeopleColumn("Name", "name", str), PeopleColumn("Pri", "priority", "{:.0f}"),
                PeopleColumn("Transit", "transit", str),
-               PeopleColumn("Max alt", "max_altitude", "{:6.1f}"),
-               PeopleColumn("Windows (local)", "windows", str),
+               PeopleColumn("Max alt deg", "max_altitude", "{:6.1f}"),
+               PeopleColumn(f"Windows ({_zone_abbreviations(result)})", "windows", str),
                PeopleColumn("Not observable because", "reason", str)]
     text = people_table(table, columns, lines + ["Targets:"])
     order = {"start": np.array([_local(result, e["start"]) for e in data["schedule"]], dtype=object),

@@ -3,10 +3,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..core.positions import LEDGER_COLUMNS, positions
-from ..core.vectors import wrap_pm180
+from ..core.positions import LEDGER_COLUMNS, position_chunks, positions
+from ..io.angles import DEG_PER_HOUR, sidereal_time_text
 from . import common
-from .people import PeopleColumn, people_table
+from .people import LOWER_BOUND_NOTE, PeopleColumn, lower_bound_cells, people_table
 
 FORMATS = ["table", "csv", "json", "ecsv", "votable"]
 
@@ -27,6 +27,9 @@ def add_parser(sub) -> None:
 def run(args) -> int:
     targets = common.load_targets(args)
     site = common.load_site(args)
+    if args.format != "table":  # machine formats are written as the chunks are computed
+        common.emit_chunks(position_chunks(targets, site, args.at, ledger=args.ledger), args)
+        return 0
     result = positions(targets, site, args.at, ledger=args.ledger)
     common.emit(result, args, lambda table: _people(table, site, args.ledger))
     return 0
@@ -34,37 +37,36 @@ def run(args) -> int:
 
 def _people(table, site, ledger: bool) -> str:
     """Aligned columns for reading at the telescope, with UTC, local and sidereal time."""
-    ctx = table.context
-    last_deg = np.degrees(ctx.site.last_rad)
+    last_hours = np.degrees(table.context.site.last_rad) / DEG_PER_HOUR
     utc_text = table.meta["time"][:19].replace("T", " ")
     header = [f"Positions at {utc_text} UTC  |  "
-              f"{common.local_time_text(table.meta['time'], site.timezone)} local  |  "
-              f"LST {people_hours(last_deg)}",
-              f"Site {table.meta['site']}: lat {site.latitude:+.4f}, lon {site.longitude:+.4f}, "
-              f"{site.height:.0f} m; {site.pressure:.0f} hPa, {site.temperature:.1f} C, "
-              f"RH {site.humidity:.2f}, {site.wavelength:.2f} um",
+              f"{common.local_time_text(table.meta['time'], site.timezone)} "
+              f"({site.timezone})  |  "
+              f"{sidereal_time_text(last_hours)}",
+              f"Site {table.meta['site']}: lat {site.latitude:+.4f} deg, "
+              f"lon {site.longitude:+.4f} deg, {site.height:.0f} m; {site.pressure:.0f} hPa, "
+              f"{site.temperature:.1f} C, RH {site.humidity:.2f}, {site.wavelength:.2f} um",
               "Apparent place: true equator and equinox of date. Alt/Az observed (refracted); "
               "Az from north through east."]
     if "earth_orientation_warning" in table.meta:
         header.append("Warning: " + table.meta["earth_orientation_warning"])
     columns = [PeopleColumn("Name", "name", str),
-               PeopleColumn("RA (date)", "ra_apparent", "ra"),
-               PeopleColumn("Dec (date)", "dec_apparent", "dec"),
+               PeopleColumn("RA (of date)", "ra_apparent", "ra"),
+               PeopleColumn("Dec (of date)", "dec_apparent", "dec"),
                PeopleColumn("HA", "ha", "hours"),
-               PeopleColumn("Alt", "alt", "{:6.2f}"),
-               PeopleColumn("Az", "az", "{:6.2f}"),
+               PeopleColumn("Alt deg", "alt", "{:6.2f}"),
+               PeopleColumn("Az deg", "az", "{:6.2f}"),
                PeopleColumn("Airmass", "airmass", "{:6.3f}"),
-               PeopleColumn("Par.ang", "parallactic_angle", "{:7.2f}"),
-               PeopleColumn('Drift"', "drift", "{:8.2f}")]
+               PeopleColumn("Par.ang deg", "parallactic_angle", "{:7.2f}"),
+               PeopleColumn('Drift "', "drift", "{:8.2f}")]
     if "error_major" in table:
-        columns.append(PeopleColumn("Err mas", "error_major", "{:7.2f}"))
+        # ">=": the row's proper-motion errors are unknown, so the ellipse is a lower bound.
+        columns.append(PeopleColumn("Err mas", "error_major",
+                                    lower_bound_cells("{:7.2f}", table["error_lower_bound"])))
+        if np.any(table["error_lower_bound"]):
+            header.append(LOWER_BOUND_NOTE)
     if ledger:
-        columns += [PeopleColumn(c.replace("ledger_", "").replace("_", " ") + '"', c, "{:8.3f}")
+        columns += [PeopleColumn(c.replace("ledger_", "").replace("_", " ") + ' "', c,
+                                 "{:8.3f}")
                     for c in LEDGER_COLUMNS if c in table]
     return people_table(table, columns, header)
-
-
-def people_hours(angle_deg: float) -> str:
-    from ..io import format_hours
-
-    return str(format_hours(np.atleast_1d(wrap_pm180(angle_deg) % 360.0), 1)[0])

@@ -16,14 +16,20 @@ from astropy.time import Time
 from .columns import ColumnTable
 from .constants import RAD_TO_ARCSEC
 from .context import make_context
+from .ranges import checked
 from .spacemotion import propagate, propagate_covariance
-from .uncertainty import error_ellipse_at
+from .uncertainty import MOTION_ERROR_COLUMNS, error_ellipse_at, errors_known
 from .targets import Targets
 from .timescale import iso_z, quiet_erfa
 from .vectors import separation, tangent_triad
 
 _RATE_STEP_YEARS = 1.0 / 365.25
 _NEWTON_ITERATIONS = 4
+# No drift exceeds half a circle: a larger tolerance can never be crossed.
+MAX_TOLERANCE_ARCSEC = 648000.0
+# Crossings further than this from the catalogue epoch are reported as none (a slow star and a
+# wide tolerance would otherwise ask the propagation for astronomically large times).
+CROSSING_HORIZON_YEARS = 1.0e6
 
 DRIFT_UNITS = {"drift": "arcsec", "drift_rate": "arcsec/yr", "crossing_sigma_days": "d",
                "error_major": "mas", "error_minor": "mas", "error_pa": "deg"}
@@ -48,22 +54,34 @@ def crossing_epochs(t: Targets, tolerance_arcsec: float) -> np.ndarray:
     total_pm_arcsec = np.hypot(t.pm_ra_cosdec, t.pm_dec) / 1000.0
     moving = total_pm_arcsec > 0.0
     dt = np.where(moving, tolerance_arcsec / np.where(moving, total_pm_arcsec, 1.0), np.nan)
+    dt[~(np.abs(dt) <= CROSSING_HORIZON_YEARS)] = np.nan
     # Newton's method on drift(dt) - tolerance; converges in 2-3 steps for real stars.
     for _ in range(_NEWTON_ITERATIONS):
         drift, rate = _drift_and_rate(t, r_catalogue, np.nan_to_num(dt))
         with np.errstate(divide="ignore", invalid="ignore"):
             dt = dt - (drift - tolerance_arcsec) / rate
+        dt[~(np.abs(dt) <= CROSSING_HORIZON_YEARS)] = np.nan
     return t.epoch + dt
 
 
-def _crossing_sigma_days(t: Targets, crossing: np.ndarray, rate: np.ndarray) -> np.ndarray:
-    """1-sigma uncertainty (days) of the crossing epoch from the astrometric errors."""
+def _crossing_sigma_days(t: Targets, crossing: np.ndarray) -> np.ndarray:
+    """1-sigma uncertainty (days) of the crossing epoch from the astrometric errors.
+
+    Everything is evaluated at the crossing, not at the instant asked: the position error
+    along the direction of motion there, divided by the drift rate there. NaN (unknown) where
+    there is no crossing or the row's position or proper-motion errors are unknown.
+    """
     sigma = np.full(len(t), np.nan)
-    known = np.isfinite(crossing) & (rate > 0.0)
-    if not (t.has_errors and known.any()):
+    if not t.has_errors:
+        return sigma
+    known = np.isfinite(crossing) & errors_known(t, MOTION_ERROR_COLUMNS)
+    if not known.any():
         return sigma
     k = t[np.flatnonzero(known)]
     dt = crossing[known] - k.epoch
+    r_catalogue, _, _ = tangent_triad(np.radians(k.ra), np.radians(k.dec))
+    # The drift rate at the crossing (negative for a crossing before the catalogue epoch).
+    _, rate = _drift_and_rate(k, r_catalogue, dt)
     cov = propagate_covariance(k.covariance(), k.ra, k.dec, k.parallax, k.pm_ra_cosdec,
                                k.pm_dec, k.radial_velocity, dt)
     prop = propagate(k.ra, k.dec, k.parallax, k.pm_ra_cosdec, k.pm_dec, k.radial_velocity, dt)
@@ -71,7 +89,9 @@ def _crossing_sigma_days(t: Targets, crossing: np.ndarray, rate: np.ndarray) -> 
     along = np.stack((prop.pm_ra_cosdec, prop.pm_dec), axis=-1)
     along /= np.linalg.norm(along, axis=-1, keepdims=True)
     var_along = np.einsum("ni,nij,nj->n", along, cov[:, :2, :2], along)
-    sigma[known] = np.sqrt(var_along) / (rate[known] * 1000.0) * 365.25
+    with np.errstate(divide="ignore", invalid="ignore"):
+        sigma_k = np.sqrt(var_along) / (np.abs(rate) * 1000.0) * 365.25
+    sigma[known] = np.where(np.abs(rate) > 0.0, sigma_k, np.nan)
     return sigma
 
 
@@ -86,10 +106,9 @@ def drift(targets: Targets, when, tolerance_arcsec: float) -> ColumnTable:
     (ISO 8601 UTC or None), crossing_sigma_days, and error_major/minor (mas)/pa (deg) at `when`
     where errors are known. Filter on over_tolerance for the targets that need attention.
     """
+    tolerance = checked(tolerance_arcsec, "tolerance", 0.0, MAX_TOLERANCE_ARCSEC, lo_open=True,
+                        hi_open=True, unit="arcsec")
     ctx = make_context(when)
-    tolerance = float(tolerance_arcsec)
-    if not np.isfinite(tolerance) or tolerance <= 0.0:
-        raise ValueError(f"tolerance must be a positive number of arcsec, got {tolerance_arcsec}")
     r_catalogue, _, _ = tangent_triad(np.radians(targets.ra), np.radians(targets.dec))
     dt_now = ctx.epoch_jyear - targets.epoch
     drift_now, rate = _drift_and_rate(targets, r_catalogue, dt_now)
@@ -102,7 +121,7 @@ def drift(targets: Targets, when, tolerance_arcsec: float) -> ColumnTable:
     columns = {"name": targets.names(), "drift": drift_now,
                "drift_rate": rate, "over_tolerance": drift_now > tolerance,
                "crossing": crossing_iso,
-               "crossing_sigma_days": _crossing_sigma_days(targets, crossing, rate)}
+               "crossing_sigma_days": _crossing_sigma_days(targets, crossing)}
     if targets.has_errors:
         columns.update(error_ellipse_at(targets, ctx.epoch_jyear))
     meta = {"time": iso_z(ctx.time), "tolerance_arcsec": tolerance}

@@ -11,13 +11,16 @@ Frames:
 
 Interlocks: a target is refused when the site's interlocks (core.limits) forbid it at the
 instant; the Sun's place for the avoidance check is the topocentric apparent place of date
-from core.sunmoon.moon_track, compared with the target's apparent place of date.
+from core.sunmoon.moon_track, compared with the target's apparent place of date. They are
+checked once, at the export instant, at each target's place (the destination, not the path a
+slew takes to it); the file says so (meta `interlocks_checked`).
 
-Validity window: how long until the exported coordinates of the fastest-moving target change
-by more than the tolerance, from a finite difference of the same computation (positions at
-the instant and one step later): one hour for the apparent and ICRS places (space motion,
-aberration, precession and nutation are slow and smooth over an hour), ten seconds for the
-observed place (the sky turns about 15 arcsec per second, common practice).
+Validity window (coordinate accuracy only; the interlocks are not re-checked over it): how
+long until the exported coordinates of the fastest-moving target change by more than the
+tolerance, from a finite difference of the same computation (positions at the instant and one
+step later): one hour for the apparent and ICRS places (space motion, aberration, precession
+and nutation are slow and smooth over an hour), ten seconds for the observed place (the sky
+turns about 15 arcsec per second, common practice).
 """
 from __future__ import annotations
 
@@ -31,7 +34,10 @@ from astropy.time import TimeDelta
 
 from .columns import ColumnTable
 from .constants import DEG_TO_RAD, RAD_TO_ARCSEC
+from .drift import MAX_TOLERANCE_ARCSEC
+from .limits import MOUNT_TYPE_NAMES
 from .positions import COLUMN_UNITS, positions
+from .ranges import checked
 from .site import Site
 from .sunmoon import moon_track
 from .targets import Targets
@@ -151,15 +157,15 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
 
     frame: 'apparent', 'icrs' or 'observed'. Targets the interlocks refuse at `when` are left
     out unless include_all, which keeps them with a `refused` column giving the reason ('' for
-    allowed targets). meta holds time, frame, equinox text, corrections, site, interlocks and
-    the validity window (valid_for_s, valid_until, validity_basis); units the column units.
+    allowed targets). meta holds time, frame, frame_description, corrections, site, mount
+    type, interlocks and when they were checked, and the validity window (valid_for_s,
+    valid_until, validity_basis, validity_scope); units the column units.
     Cost: two positions() calls and one Sun place.
     """
     if frame not in FRAMES:
         raise ValueError(f"frame {frame!r} is not one of {', '.join(FRAMES)}")
-    tolerance = float(tolerance_arcsec)
-    if not np.isfinite(tolerance) or tolerance <= 0.0:
-        raise ValueError(f"tolerance must be a positive number of arcsec, got {tolerance_arcsec}")
+    tolerance = checked(tolerance_arcsec, "tolerance", 0.0, MAX_TOLERANCE_ARCSEC, lo_open=True,
+                        hi_open=True, unit="arcsec")
     result = positions(targets, site, when)
     reasons = refusals(result, site)
     keep = np.ones(len(targets), bool) if include_all else reasons == ""
@@ -174,10 +180,16 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
     if include_all:
         columns["refused"] = reasons[rows]
     time_iso = result.meta["time"]
-    meta = {"time": time_iso, "frame": frame, "equinox": _frame_text(frame, time_iso, site),
+    meta = {"time": time_iso, "frame": frame,
+            "frame_description": _frame_text(frame, time_iso, site),
             "corrections": CORRECTIONS[frame]}
-    meta.update({k: result.meta[k] for k in ("site", "latitude", "longitude", "height")})
+    meta.update({k: result.meta[k] for k in ("site", "latitude", "longitude", "height",
+                                              "timezone", "timezone_source")})
+    meta["mount_type"] = MOUNT_TYPE_NAMES[site.interlocks.mount.mount_type]
     meta["interlocks"] = _interlocks_text(site)
+    meta["interlocks_checked"] = (f"at the export instant {time_iso} only, at each target's "
+                                  "exported place (the destination, not the path of a slew); "
+                                  "check again before pointing at any later time")
     meta.update(targets_allowed=int(np.count_nonzero(reasons == "")),
                 targets_refused=int(np.count_nonzero(reasons != "")),
                 tolerance_arcsec=tolerance)
@@ -190,9 +202,12 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
 
 
 def _validity_meta(frame, t, seconds, fastest, rate, tolerance, exported: bool) -> dict:
+    scope = ("coordinate accuracy only: the interlocks were checked at the export instant, "
+             "not over the validity window")
     if not np.isfinite(seconds):
         why = "no exported target moves in this frame" if exported else "no target exported"
-        return {"valid_for_s": None, "valid_until": "unlimited", "validity_basis": why}
+        return {"valid_for_s": None, "valid_until": "unlimited", "validity_basis": why,
+                "validity_scope": scope}
     per = "arcsec per second" if frame == "observed" else "arcsec per hour"
     shown_rate = rate if frame == "observed" else rate * 3600.0
     basis = (f"{tolerance:g} arcsec / {shown_rate:.6g} {per}, the largest on-sky change of "
@@ -201,7 +216,8 @@ def _validity_meta(frame, t, seconds, fastest, rate, tolerance, exported: bool) 
     if frame == "observed":
         basis = "the sky turns about 15 arcsec per second: " + basis
     until = iso_z(t + TimeDelta(min(seconds, 1e4 * 86400.0 * 365.25), format="sec"))
-    return {"valid_for_s": seconds, "valid_until": until, "validity_basis": basis}
+    return {"valid_for_s": seconds, "valid_until": until, "validity_basis": basis,
+            "validity_scope": scope}
 
 
 # -- files ------------------------------------------------------------------------------------

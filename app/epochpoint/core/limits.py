@@ -10,6 +10,9 @@ from dataclasses import dataclass, field
 import numpy as np
 
 MOUNT_TYPES = ("equatorial", "german", "altaz")
+# How each mount type is named to people (the trade's names, common practice).
+MOUNT_TYPE_NAMES = {"equatorial": "fork equatorial", "german": "German equatorial",
+                    "altaz": "alt-az"}
 
 
 class LimitError(ValueError):
@@ -67,6 +70,9 @@ class MountLimits:
     meridian it may point. dec_min/dec_max: declination range. For a German equatorial
     mount, meridian_limit is how far past the meridian (degrees of hour angle) it may track
     before it must flip. slew_rate (deg/s, per axis) and settle (s) time the slews.
+    park_ha/park_dec: where the mount rests before the night (degrees of hour angle, west
+    positive, and degrees of declination); None for both: the common home position, the
+    elevated celestial pole with the counterweight down (see `park`).
     """
 
     mount_type: str = "equatorial"
@@ -78,6 +84,8 @@ class MountLimits:
     meridian_limit: float = 5.0
     slew_rate: float = 3.0
     settle: float = 10.0
+    park_ha: float | None = None
+    park_dec: float | None = None
 
     def __post_init__(self):
         if self.mount_type not in MOUNT_TYPES:
@@ -103,6 +111,25 @@ class MountLimits:
         for name, ok, message in checks:
             if not ok:
                 raise LimitError(name, f"{getattr(self, name)!r} {message}")
+        if (self.park_ha is None) != (self.park_dec is None):
+            raise LimitError("park_ha" if self.park_ha is None else "park_dec",
+                             "park_ha and park_dec go together")
+        if self.park_ha is not None:
+            for name, bound in (("park_ha", 180.0), ("park_dec", 90.0)):
+                value = getattr(self, name)
+                if not isinstance(value, (int, float)) or not -bound <= value <= bound:
+                    raise LimitError(name, f"{value!r} must be in [-{bound:g}, {bound:g}] "
+                                           f"degrees")
+
+    def park(self, latitude_deg: float) -> tuple[float, float]:
+        """(hour angle, declination) in degrees where the mount starts the night: park_ha and
+        park_dec, or by default the elevated celestial pole with the counterweight down
+        (hour angle -90 deg for a German mount, whose counterweight then hangs straight
+        down; 0 for the others; common practice for a mount's home position)."""
+        if self.park_ha is not None:
+            return float(self.park_ha), float(self.park_dec)
+        pole = 90.0 if latitude_deg >= 0.0 else -90.0
+        return (-90.0 if self.mount_type == "german" else 0.0), pole
 
 
 @dataclass(frozen=True)

@@ -13,8 +13,10 @@ Observatory, "Rise, Set, and Twilight Definitions"; common practice):
   Astronomical Algorithms (2nd ed.), ch. 15, whose h0 = 0.7275 pi - 34' on the geocentric
   altitude folds the parallax pi and the semidiameter into one term.
 
-The night of a date runs from local noon on that date to local noon the next day (local time
-from the site's IANA zone, via zoneinfo); every event lies inside that window or is None.
+The night of a date runs from the site's local mean solar noon on that date to the next one
+(12:00 UTC minus longitude/15 hours): the Sun is near its highest at both ends, so the whole
+night lies inside, at every longitude and whatever civil zone the site keeps (the zone only
+labels times). Every event lies inside that window or is None.
 
 Method: the altitude is sampled every 10 minutes over the window; each local extremum of the
 samples is refined by a parabola through its three samples (so a brief dip below a level, or
@@ -26,7 +28,7 @@ Cost: one batch of 145 Sun positions plus two or three small refinement batches,
 Which crossing is "the" event: the evening event is where the Sun goes below the level for
 the stretch that contains the Sun's lowest point in the window, the morning event is where it
 comes back above at the end of that same stretch. On ordinary nights there is one crossing
-each way. On odd nights (near the poles, or where local noon is hours from solar noon) the
+each way. On odd nights (near the poles) the
 Sun may dip below a level, come back up and dip again; then the events bound the continuous
 stretch around the lowest point, and `sun_below_intervals` gives every stretch.
 """
@@ -34,14 +36,14 @@ from __future__ import annotations
 
 import datetime as _dt
 from dataclasses import dataclass
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import numpy as np
 from astropy.time import Time
 
-from .site import Site, SiteError
+from .site import Site
 from .sunmoon import moon_phase, moon_track, sun_altaz
-from .timescale import TimeInputError, iso_z, parse_time, quiet_erfa
+from .timescale import TimeInputError, check_year, iso_z, parse_time, quiet_erfa
+from .zones import wrap_longitude
 
 # The Sun's centre at sunrise and sunset: 34' refraction + 16' semidiameter below the horizon.
 SUNRISE_ALTITUDE_DEG = -50.0 / 60.0
@@ -75,8 +77,8 @@ class NightBoundaries:
     """
 
     date: _dt.date
-    window_start: Time  # local noon of date
-    window_end: Time  # local noon of the next day
+    window_start: Time  # local mean solar noon of date (UTC)
+    window_end: Time  # local mean solar noon of the next day
     sunset: Time | None
     civil_twilight_end: Time | None
     nautical_twilight_end: Time | None
@@ -96,35 +98,54 @@ class NightBoundaries:
 
 
 def _as_date(value) -> _dt.date:
-    """A calendar date from a datetime.date (or datetime) or a 'YYYY-MM-DD' string."""
+    """A calendar date from a datetime.date (or datetime) or a 'YYYY-MM-DD' string, within
+    the years timescale.FIRST_YEAR..LAST_YEAR."""
     if isinstance(value, _dt.datetime):
-        return value.date()
-    if isinstance(value, _dt.date):
-        return value
-    text = str(value).strip()
-    try:
-        return _dt.date.fromisoformat(text)
-    except ValueError:
-        raise TimeInputError(f"date {text!r} is not a calendar date (YYYY-MM-DD)") from None
-
-
-def _zone(site: Site) -> ZoneInfo:
-    try:
-        return ZoneInfo(site.timezone)
-    except (ZoneInfoNotFoundError, ValueError):
-        raise SiteError("timezone", f"{site.timezone!r} is not an IANA time zone name "
-                        "(e.g. America/Santiago, Europe/Madrid, UTC)") from None
+        date = value.date()
+    elif isinstance(value, _dt.date):
+        date = value
+    else:
+        text = str(value).strip()
+        try:
+            date = _dt.date.fromisoformat(text)
+        except ValueError:
+            raise TimeInputError(f"date {text!r} is not a calendar date (YYYY-MM-DD)") from None
+    check_year(date.year, f"date {date.isoformat()!r}")
+    return date
 
 
 def night_window(site: Site, date) -> tuple[Time, Time]:
-    """Local noon of date and local noon of the next day at the site, as UTC Times."""
-    day, zone = _as_date(date), _zone(site)
-    noon = _dt.time(12, 0)
-    start = _dt.datetime.combine(day, noon, tzinfo=zone)
-    end = _dt.datetime.combine(day + _dt.timedelta(days=1), noon, tzinfo=zone)
-    start, end = parse_time(start), parse_time(end)
-    start.format = end.format = "isot"
+    """The night of `date` at the site: from its local mean solar noon on that date to the next,
+    as UTC Times.
+
+    Local mean noon is 12:00 UTC minus the longitude in hours (longitude/15, east positive),
+    so the window holds the whole night wherever the site is and whatever civil zone it keeps
+    (mean solar time is within about 16 minutes of true solar time, the equation of time:
+    Astronomical Almanac, "Equation of time"; common practice). The zone only labels times.
+    """
+    day = _as_date(date)
+    noon_offset_d = 0.5 - wrap_longitude(site.longitude) / 360.0
+    start = _day_time(day, noon_offset_d)
+    end = _day_time(day, noon_offset_d + 1.0)
     return start, end
+
+
+def night_date_at(site: Site, instant) -> _dt.date:
+    """The date whose night (local mean noon to local mean noon, see `night_window`) holds
+    `instant` (a Time, datetime or ISO 8601 UTC text): 'tonight' at the site."""
+    t = parse_time(instant)
+    shifted = t.utc.datetime + _dt.timedelta(hours=wrap_longitude(site.longitude) / 15.0 - 12.0)
+    return shifted.date()
+
+
+def _day_time(day: _dt.date, offset_d: float) -> Time:
+    """The UTC instant `offset_d` days after 00:00 UTC of `day`, counted in TAI (so a leap
+    second in between cannot move it), as an isot Time."""
+    midnight = parse_time(f"{day.isoformat()}T00:00:00Z")
+    tai = midnight.tai
+    t = Time(tai.jd1, tai.jd2 + offset_d, format="jd", scale="tai").utc
+    t.format = "isot"
+    return t
 
 
 class _Scan:
@@ -306,7 +327,7 @@ def moon_events(site: Site, boundaries: NightBoundaries) -> dict:
     moonrise/moonset: the first rise and the first set inside the window (upper limb on the
     horizon, see module notes), ISO 8601 UTC with Z, or None (a window holds at most one of
     each except at high latitudes, where the first is given). up_at_window_start says whether
-    the upper limb is above the horizon at local noon. illumination (0..1), phase_angle_deg and
+    the upper limb is above the horizon at the window start (local mean noon). illumination (0..1), phase_angle_deg and
     waxing are geocentric, at phase_time: the middle of astronomical darkness, else of the
     deepest darkness reached, else of the window (phase_time_basis names which).
     """

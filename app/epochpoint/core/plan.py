@@ -14,8 +14,9 @@ import numpy as np
 from astropy.time import Time
 
 from .night import NightBoundaries, moon_events, night_boundaries
-from .schedule import Schedule, schedule
+from .schedule import MAX_ITERATIONS, Schedule, schedule
 from .schedule_model import priority_weight
+from .ranges import checked
 from .schedule_slew import Mount
 from .site import Site
 from .sky_track import SkyTrack, build_sky_track
@@ -27,9 +28,11 @@ DEFAULT_PRIORITY = 3
 DEFAULT_EXPOSURE_S = 300.0
 DEFAULT_REPEATS = 1
 DARKNESS_LEVELS = ("civil", "nautical", "astronomical")
-# Wall-time budget of the schedule search: insertion alone reaches ~98 % of a long search's
-# total priority within 0.05 s (benchmarks/bench_schedule.py); the rest polishes.
-SCHEDULE_SECONDS = 0.3
+# The schedule search is bounded by iterations and seeded, so a plan is reproducible; its
+# wall time is only an upper limit (the search reports which limit stopped it).
+SCHEDULE_ITERATIONS = MAX_ITERATIONS
+SCHEDULE_SEED = 0
+SCHEDULE_SECONDS = 30.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -116,8 +119,12 @@ class Plan:
                        for u in order.unscheduled]
         return {"site": self.site.name or f"{self.site.latitude},{self.site.longitude}",
                 "date": self.night.date.isoformat(), "darkness": self.constraints.darkness,
+                "timezone": self.site.timezone,
+                "timezone_source": self.site.timezone_source,
                 "night": self.night.to_json(), "moon": self.moon, "targets": targets,
-                "schedule": entries, "unscheduled": unscheduled}
+                "schedule": entries, "unscheduled": unscheduled,
+                "search": {"iterations": int(order.iterations), "seed": int(order.seed),
+                           "stopped_by": order.stopped_by}}
 
 
 def _rounded(value, digits):
@@ -167,16 +174,24 @@ def centre_on_transit(order: Schedule, blocks: list, transit_s: np.ndarray) -> S
 def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          min_altitude: float | None = None, max_airmass: float | None = None,
          moon_separation: float = 0.0, moon_scale: bool = False,
-         max_seconds: float = SCHEDULE_SECONDS) -> Plan:
+         max_seconds: float = SCHEDULE_SECONDS, seed: int = SCHEDULE_SEED,
+         max_iterations: int = SCHEDULE_ITERATIONS,
+         mount_position: tuple[float, float] | None = None) -> Plan:
     """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
 
     Altitudes are observed (refracted) altitudes with the site's weather; pressure 0 turns
     refraction off. The mount limits, horizon mask and Sun avoidance of the site always apply.
-    max_seconds bounds the schedule search (more time may find a slightly better order).
+    The schedule search runs `max_iterations` seeded by `seed` (the same plan every time);
+    max_seconds is only an upper limit on it. Slews start from the site's park position or
+    from `mount_position`, the (hour angle, declination) in degrees the mount reports.
     """
     if darkness not in DARKNESS_LEVELS:
         raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "
                          f"got {darkness!r}")
+    checked(max_seconds, "max_seconds", 0.0, unit="s")
+    checked(max_iterations, "max_iterations", 0.0)
+    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
+        raise ValueError(f"seed must be a whole number >= 0, got {seed!r}")
     constraints = Constraints(darkness=darkness, min_altitude=min_altitude,
                               max_airmass=max_airmass, moon_separation=moon_separation,
                               moon_scale=moon_scale)
@@ -191,11 +206,16 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
     dark = [] if span is None else [(float((span[0] - t_ref).to_value("s")),
                                      float((span[1] - t_ref).to_value("s")))]
     windows = observable_windows(targets, site, sky, dark, constraints)
-    mount = site.interlocks.mount
+    limits = site.interlocks.mount
+    park_ha, park_dec = (limits.park(site.latitude) if mount_position is None
+                         else (float(mount_position[0]), float(mount_position[1])))
+    mount = Mount(settle_s=limits.settle, slew_rate_deg_s=limits.slew_rate,
+                  german=limits.mount_type == "german", latitude_deg=site.latitude,
+                  lst_start_deg=float(windows.geometry.local_sidereal_deg(0.0)),
+                  park_ha_deg=park_ha, park_dec_deg=park_dec)
     order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.blocks,
-                     length_s, ra_deg=windows.ra, dec_deg=windows.dec,
-                     mount=Mount(settle_s=mount.settle, slew_rate_deg_s=mount.slew_rate),
-                     max_seconds=max_seconds)
+                     length_s, ra_deg=windows.ra, dec_deg=windows.dec, mount=mount,
+                     max_seconds=max_seconds, seed=int(seed), max_iterations=int(max_iterations))
     order = centre_on_transit(order, windows.blocks, windows.transit)
     return Plan(site=site, night=boundaries, moon=moon_events(site, boundaries),
                 constraints=constraints, sky=sky, windows=windows, schedule=order,

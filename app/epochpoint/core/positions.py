@@ -7,8 +7,8 @@ stays bounded (a few hundred bytes per star of scratch) for catalogues of any si
 from __future__ import annotations
 
 import os
+from collections import deque
 from concurrent.futures import ThreadPoolExecutor
-from functools import partial
 
 import numpy as np
 
@@ -19,7 +19,7 @@ from .context import AstrometryContext, make_context
 from .observed import observed_place
 from .site import Site
 from .spacemotion import propagate
-from .uncertainty import error_ellipse_at
+from .uncertainty import ELLIPSE_COLUMNS, error_ellipse_at
 from .targets import Targets
 from .timescale import iso_z
 from .vectors import chord_separation, separation, to_spherical
@@ -59,7 +59,8 @@ def _context_meta(ctx: AstrometryContext) -> dict:
         meta.update(site=s.name or f"{s.latitude:.6f},{s.longitude:.6f},{s.height:.1f}",
                     latitude=s.latitude, longitude=s.longitude, height=s.height,
                     pressure_hpa=s.pressure, temperature_c=s.temperature,
-                    humidity=s.humidity, wavelength_um=s.wavelength, timezone=s.timezone)
+                    humidity=s.humidity, wavelength_um=s.wavelength, timezone=s.timezone,
+                    timezone_source=s.timezone_source)
     if ctx.eop_warning:
         meta["earth_orientation_warning"] = ctx.eop_warning
     return meta
@@ -73,33 +74,86 @@ class Positions(ColumnTable):
         self.context = context
 
 
+class PositionChunks:
+    """Positions computed chunk by chunk: `meta`, `units` and `names` at once, then iterating
+    yields one mapping name -> array per chunk of targets, in target order.
+
+    Chunks run on all cores (numpy releases the GIL), at most WORKERS + 1 ahead of the
+    reader, so memory holds a few chunks whatever the number of targets; the per-instant
+    context is computed once. At least one chunk is yielded (empty when there are no targets).
+    """
+
+    def __init__(self, targets: Targets, site: Site | None, when, *, ledger: bool = False,
+                 context: AstrometryContext | None = None, chunk_size: int = CHUNK_SIZE):
+        self.targets, self.ledger, self.chunk_size = targets, ledger, max(1, int(chunk_size))
+        self.context = ctx = context if context is not None else make_context(when, site)
+        self.computed = list(BASE_COLUMNS)
+        if ctx.site is not None:
+            self.computed += list(SITE_COLUMNS)
+        if ledger:
+            self.computed += [c for c in LEDGER_COLUMNS
+                              if ctx.site is not None or c not in SITE_LEDGER]
+        self.names = ["name"] + self.computed
+        if targets.has_errors:
+            self.names += list(ELLIPSE_COLUMNS)
+        self.meta = _context_meta(ctx)
+        self.units = {k: v for k, v in COLUMN_UNITS.items() if k in self.names}
+
+    def spans(self) -> list:
+        n = len(self.targets)
+        return [slice(start, min(start + self.chunk_size, n))
+                for start in range(0, n, self.chunk_size)] or [slice(0, 0)]
+
+    def chunk(self, rows: slice) -> dict:
+        """Every column for the targets in `rows` (a slice)."""
+        part = self.targets[rows]
+        out = {"name": part.names()}
+        out.update({c: np.empty(len(part)) for c in self.computed})
+        _fill_chunk(part, self.context, out, slice(None), ledger=self.ledger)
+        if part.has_errors:
+            out.update(error_ellipse_at(part, self.context.epoch_jyear))
+        return out
+
+    def __iter__(self):
+        spans = self.spans()
+        if len(spans) == 1:
+            yield self.chunk(spans[0])
+            return
+        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
+            pending = deque()
+            for rows in spans:
+                pending.append(pool.submit(self.chunk, rows))
+                if len(pending) > WORKERS:
+                    yield pending.popleft().result()
+            while pending:
+                yield pending.popleft().result()
+
+
+def position_chunks(targets: Targets, site: Site | None, when, *, ledger: bool = False,
+                    context: AstrometryContext | None = None,
+                    chunk_size: int = CHUNK_SIZE) -> PositionChunks:
+    """The positions of `positions()`, as an iterable of column chunks (see PositionChunks)."""
+    return PositionChunks(targets, site, when, ledger=ledger, context=context,
+                          chunk_size=chunk_size)
+
+
 def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False,
               context: AstrometryContext | None = None) -> Positions:
     """Propagated, apparent and (with a site) observed places of all targets at one instant.
 
     `when` is an ISO 8601 UTC string, 'now' or an astropy Time. Without a site only the
-    propagated and apparent columns are computed. Chunks run on all cores (numpy releases
-    the GIL); the per-instant context is computed once.
+    propagated and apparent columns are computed. The chunks of `position_chunks` are
+    gathered into whole columns.
     """
-    ctx = context if context is not None else make_context(when, site)
+    chunks = position_chunks(targets, site, when, ledger=ledger, context=context)
     n = len(targets)
-    names = list(BASE_COLUMNS)
-    if ctx.site is not None:
-        names += list(SITE_COLUMNS)
-    if ledger:
-        names += [c for c in LEDGER_COLUMNS if ctx.site is not None or c not in SITE_LEDGER]
     out = {"name": targets.names}  # made when first read
-    out.update({c: np.empty(n) for c in names})
-    chunks = [slice(start, min(start + CHUNK_SIZE, n)) for start in range(0, n, CHUNK_SIZE)]
-    fill = partial(_fill_chunk, targets, ctx, out, ledger=ledger)
-    if len(chunks) > 1:
-        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
-            list(pool.map(fill, chunks))
-    elif chunks:
-        fill(chunks[0])
-    if targets.has_errors:
-        out.update(error_ellipse_at(targets, ctx.epoch_jyear))
-    return Positions(out, ctx)
+    out.update({c: np.empty(n, dtype=bool if c == "error_lower_bound" else float)
+                for c in chunks.names[1:]})
+    for rows, part in zip(chunks.spans(), chunks):
+        for c in chunks.names[1:]:
+            out[c][rows] = part[c]
+    return Positions(out, chunks.context)
 
 
 def _store_radec(out: dict, rows: slice, prefix: str, p: np.ndarray):

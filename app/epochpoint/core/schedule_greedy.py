@@ -17,9 +17,10 @@ def greedy_order(problem: NightProblem):
     """The baseline's order and start times (lists), in observing order."""
     rows, duration, windows = problem.slew_rows, problem.duration_s, problem.windows
     park = problem.n
-    route, starts = [], []
+    route, starts, taken = [], [], set()
     for j in np.argsort(-problem.weight, kind="stable").tolist():
-        if problem.reason[j] is not None:
+        # One item per target (a German mount's targets have one item per pier side).
+        if problem.reason[j] is not None or int(problem.group[j]) in taken:
             continue
         # Try the gaps in time order: before the first block, between blocks, after the last.
         for gap in range(len(route) + 1):
@@ -31,5 +32,6 @@ def greedy_order(problem: NightProblem):
             if start is not None:
                 route.insert(gap, j)
                 starts.insert(gap, start)
+                taken.add(int(problem.group[j]))
                 break
     return route, starts

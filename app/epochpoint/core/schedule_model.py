@@ -8,7 +8,9 @@ target's windows (every constraint, altitude, mount limits, Moon, darkness, alre
 Slews live in one table `slew_s` of shape (n + 1, n + 1): entry [a, b] is the time from
 target a to target b; row n is the park position (the mount's place at the night's start)
 and column n the end of the night (always 0 s). schedule_slew.py builds it for an equatorial
-mount; any other table (or callable) with that layout may be passed instead.
+mount; any other table (or callable) with that layout may be passed instead. A German mount's
+targets become items, one per pier side (schedule_pier.py): `group` maps each item to its
+target, and an order holds at most one item of a target.
 
 Earliest-start timing of a fixed order is optimal: the earliest start of a block is a
 non-decreasing function of its arrival time (arrival = previous end + slew), so starting every
@@ -98,14 +100,22 @@ class NightProblem:
     windows: tuple
     reason: tuple  # per target: None when it fits alone, else why it never can
     slew_rows: list  # slew_s as nested Python lists, for scalar loops
+    group: np.ndarray  # the target of each item (the identity without pier sides)
+    target_reason: tuple  # per target, before any split into items
 
     @property
     def n(self) -> int:
         return self.weight.size
 
+    @property
+    def n_targets(self) -> int:
+        return len(self.target_reason)
 
-def night_problem(weight, duration_s, windows_s, night_end_s, slew_s=None) -> NightProblem:
-    """Check and pack the input (see `schedule` for the arguments)."""
+
+def night_problem(weight, duration_s, windows_s, night_end_s, slew_s=None, group=None,
+                  target_windows=None) -> NightProblem:
+    """Check and pack the input (see `schedule` for the arguments). With `group` (item ->
+    target) the rows are items and `target_windows` the targets' own windows."""
     night_end_s = float(night_end_s)
     if not (math.isfinite(night_end_s) and night_end_s > 0.0):
         raise ScheduleInputError("night_end_s", None, f"{night_end_s!r} is not a positive number")
@@ -130,8 +140,20 @@ def night_problem(weight, duration_s, windows_s, night_end_s, slew_s=None) -> Ni
     for i, pairs in enumerate(usable):
         if pairs:
             win_open[i, :len(pairs)], win_last[i, :len(pairs)] = np.array(pairs).T
+    group = np.arange(n) if group is None else np.asarray(group, dtype=int)
+    target_reason = tuple(reason) if target_windows is None else \
+        _target_reasons(group, reason, target_windows, night_end_s)
     return NightProblem(weight, duration, night_end_s, table, win_open, win_last,
-                        tuple(usable), tuple(reason), table.tolist())
+                        tuple(usable), tuple(reason), table.tolist(), group, target_reason)
+
+
+def _target_reasons(group, item_reason, target_windows, night_end_s) -> tuple:
+    """Per target: None when one of its items fits alone, else why none ever can."""
+    fits = np.zeros(len(target_windows), dtype=bool)
+    fits[group[[k for k, r in enumerate(item_reason) if r is None]]] = True
+    inside = [any(min(e, night_end_s) > max(s, 0.0) for s, e in w) for w in target_windows]
+    return tuple(None if ok else NO_WINDOW_LONG_ENOUGH if has else NO_WINDOW
+                 for ok, has in zip(fits, inside))
 
 
 def _slew_input(slew_s, n) -> np.ndarray:
@@ -216,6 +238,8 @@ class Schedule:
     total_weight: float
     iterations: int = 0
     elapsed_s: float = 0.0
+    seed: int = 0
+    stopped_by: str = ""  # which limit ended the search: see schedule.STOP_REASONS
 
     @property
     def entries(self) -> tuple:
@@ -223,14 +247,16 @@ class Schedule:
                      in zip(self.index, self.start_s, self.end_s, self.slew_s))
 
 
-def make_schedule(problem: NightProblem, route, starts, iterations=0, elapsed_s=0.0):
-    """Package an order and its start times as a `Schedule` with reasons for the rest."""
+def make_schedule(problem: NightProblem, route, starts, iterations=0, elapsed_s=0.0,
+                  seed=0, stopped_by=""):
+    """Package an order and its start times as a `Schedule` (indices of targets, not items)
+    with reasons for the rest."""
     index = np.asarray(route, dtype=int)
     previous = np.concatenate(([problem.n], index))[:-1].astype(int)
-    chosen = set(route)
-    unscheduled = tuple(Unscheduled(i, problem.reason[i] or DISPLACED)
-                        for i in range(problem.n) if i not in chosen)
+    chosen = set(problem.group[index].tolist())
+    unscheduled = tuple(Unscheduled(i, problem.target_reason[i] or DISPLACED)
+                        for i in range(problem.n_targets) if i not in chosen)
     start = np.asarray(starts, dtype=float)
-    return Schedule(index, start, start + problem.duration_s[index],
+    return Schedule(problem.group[index], start, start + problem.duration_s[index],
                     problem.slew_s[previous, index], unscheduled,
-                    math.fsum(problem.weight[index]), iterations, elapsed_s)
+                    math.fsum(problem.weight[index]), iterations, elapsed_s, seed, stopped_by)

@@ -90,16 +90,18 @@ def recreate(problem, order, cand, deadline, rng=None, alpha=2.0, noise=0.0) -> 
         row, position = divmod(int(np.argmax(score)), score.shape[1])
         route = order.route[:position] + [int(cand[row])] + order.route[position:]
         order = evaluate(problem, route) or order  # feasible by construction
-        # A candidate that fits nowhere now never fits later (slews obey the triangle rule).
-        fits_somewhere[row] = False
+        # A candidate that fits nowhere now never fits later (slews obey the triangle rule);
+        # the inserted target's items (one per pier side) leave the candidates.
+        fits_somewhere &= problem.group[cand] != problem.group[cand[row]]
         cand, weight_term = cand[fits_somewhere], weight_term[fits_somewhere]
     return order
 
 
-def _outside(pool: np.ndarray, route, n: int) -> np.ndarray:
-    mask = np.ones(n, dtype=bool)
-    mask[route] = False
-    return pool[mask[pool]]
+def _outside(problem: NightProblem, pool: np.ndarray, route) -> np.ndarray:
+    """The items of `pool` whose target is not in `route`."""
+    free = np.ones(problem.n_targets, dtype=bool)
+    free[problem.group[route]] = False
+    return pool[free[problem.group[pool]]]
 
 
 def _ruin(route, rng):
@@ -116,11 +118,19 @@ def _ruin(route, rng):
 
 
 def improve(problem, best: Order, pool, deadline, seed, max_iterations, patience):
-    """Ruin and recreate from `best`; returns (best order found, iterations run)."""
+    """Ruin and recreate from `best`; returns (best order found, iterations run, the limit
+    that stopped it: "iterations", "patience", "time" or "empty" for an empty order)."""
     rng = np.random.default_rng(seed)
     current, stall, iterations = best, 0, 0
-    while (iterations < max_iterations and stall < patience and current.route
-           and time.perf_counter() < deadline):
+    while True:
+        if not current.route:
+            return best, iterations, "empty"
+        if iterations >= max_iterations:
+            return best, iterations, "iterations"
+        if stall >= patience:
+            return best, iterations, "patience"
+        if time.perf_counter() >= deadline:
+            return best, iterations, "time"
         iterations += 1
         kept, removed = _ruin(current.route, rng)
         candidate = evaluate(problem, kept)
@@ -130,9 +140,9 @@ def improve(problem, best: Order, pool, deadline, seed, max_iterations, patience
         alpha = (1.0, 2.0)[int(rng.integers(2))]
         noise = (0.0, 0.2, 0.5)[int(rng.integers(3))]
         if rng.random() < 0.5:  # first refill without the removed targets: forces a swap
-            others = _outside(pool, kept + removed, problem.n)
+            others = _outside(problem, pool, kept + removed)
             candidate = recreate(problem, candidate, others, deadline, rng, alpha, noise)
-        rest = _outside(pool, candidate.route, problem.n)
+        rest = _outside(problem, pool, candidate.route)
         candidate = recreate(problem, candidate, rest, deadline, rng, alpha, noise)
         if candidate.key() > best.key():
             best, stall = candidate, 0
@@ -142,4 +152,3 @@ def improve(problem, best: Order, pool, deadline, seed, max_iterations, patience
             current = candidate
         if stall and stall % _RETURN_TO_BEST_AFTER == 0:
             current = best
-    return best, iterations

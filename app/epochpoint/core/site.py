@@ -3,8 +3,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 from .limits import Interlocks
+from .zones import zone_at
 
 
 class SiteError(ValueError):
@@ -23,6 +25,17 @@ def standard_pressure_hpa(height_m: float) -> float:
     return 1013.25 * (1.0 - 2.25577e-5 * height_m) ** 5.25588
 
 
+def _is_zone(name) -> bool:
+    """True when `name` is a time zone name that zoneinfo knows."""
+    if not isinstance(name, str):
+        return False
+    try:
+        ZoneInfo(name)
+    except (ZoneInfoNotFoundError, ValueError, OSError):
+        return False
+    return True
+
+
 @dataclass(frozen=True)
 class Site:
     """A geodetic site (WGS84) with its default weather.
@@ -30,7 +43,10 @@ class Site:
     latitude, longitude: degrees, longitude positive east; height: metres above the ellipsoid.
     pressure: hPa (None: the standard atmosphere at the site's height; 0 turns refraction off);
     temperature: degrees C; humidity: relative, 0..1; wavelength: micrometres.
-    timezone: IANA name for local times; interlocks: horizon mask, mount limits, Sun avoidance.
+    timezone: IANA name used to show local times, or None (the default) for the zone that holds
+    the coordinates, found offline (`zones.zone_at`; `timezone_from_coordinates` is then True).
+    The zone only labels times: the night of a date is fixed by the longitude, not the zone.
+    interlocks: horizon mask, mount limits, Sun avoidance.
     """
 
     latitude: float
@@ -41,9 +57,11 @@ class Site:
     humidity: float = 0.5
     wavelength: float = 0.55
     name: str = ""
-    timezone: str = "UTC"
+    timezone: str | None = None
     # Horizon mask, mount limits and Sun avoidance (on by default).
     interlocks: Interlocks = field(default_factory=Interlocks)
+    # True when the zone was found from the coordinates rather than given.
+    timezone_from_coordinates: bool = field(default=False, compare=False)
 
     def __post_init__(self):
         for field_name in ("latitude", "longitude", "height", "temperature", "humidity",
@@ -69,6 +87,23 @@ class Site:
                 raise SiteError(field_name, f"{getattr(self, field_name)!r} {message}")
         if not isinstance(self.interlocks, Interlocks):
             raise SiteError("interlocks", "must be an Interlocks")
+        if self.timezone is None or not str(self.timezone).strip():
+            object.__setattr__(self, "timezone", zone_at(self.latitude, self.longitude))
+            object.__setattr__(self, "timezone_from_coordinates", True)
+        elif not _is_zone(self.timezone):
+            raise SiteError("timezone", f"{self.timezone!r} is not an IANA time zone name "
+                            "(e.g. America/Santiago, Europe/Madrid, Etc/GMT+10, UTC)")
+        elif not isinstance(self.timezone, str):
+            raise SiteError("timezone", f"{self.timezone!r} is not an IANA time zone name")
+
+    @property
+    def timezone_source(self) -> str:
+        """Where the zone came from: 'site' (given) or 'coordinates' (found from them)."""
+        return "coordinates" if self.timezone_from_coordinates else "site"
+
+    def with_timezone(self, name: str | None):
+        """A copy showing local times in zone `name` (None: the zone of the coordinates)."""
+        return replace(self, timezone=name, timezone_from_coordinates=False)
 
     def with_weather(self, pressure=None, temperature=None, humidity=None, wavelength=None):
         """A copy with the given weather values replaced (None keeps the site's own)."""

@@ -2,14 +2,21 @@
 
 The IERS Bulletin A table (finals2000A) shipped by the astropy-iers-data package supplies
 UT1-UTC and polar motion. Nothing is ever downloaded: when an instant lies beyond the table's
-predictions, or long after its last measurement, a `StaleEarthOrientation` warning states the
-table's age and the computation goes on with astropy's extrapolation (UT1-UTC held, polar
-motion from its long-term mean).
+predictions, long after its last measurement, or before its first entry (1973), a
+`StaleEarthOrientation` warning says so and the computation goes on with astropy's
+extrapolation (UT1-UTC held at the nearest value, polar motion from its long-term mean).
+
+Instants and dates are accepted from 1800 to 2200. ERFA's Earth ephemeris (epv00) is specified
+for 1900-2100 and its errors merely double by 1800 and 2200 (ERFA epv00, note 4); the
+precession-nutation and Moon models degrade likewise. Outside that span the answers would be
+guesses, so such times are refused in one line. Leap seconds (23:59:60 on a day the leap-second
+table lists, e.g. 2016-12-31) are accepted as instants.
 """
 from __future__ import annotations
 
 import datetime as _dt
 import functools
+import re
 import warnings
 from dataclasses import dataclass
 from functools import lru_cache
@@ -27,6 +34,13 @@ iers.conf.iers_degraded_accuracy = "ignore"
 # An instant this long after the table's last measured value counts as stale (UT1 prediction
 # errors grow to ~10 ms, 0.15" at the equator, after about 90 days: IERS Bulletin A accuracy note).
 STALE_AFTER_DAYS = 90.0
+# The years every instant and date must lie in (see the module docstring).
+FIRST_YEAR, LAST_YEAR = 1800, 2200
+# Julian dates of 1799-12-31T00:00 and 2201-01-02T00:00: the same span for astropy Times, with
+# a day's margin for the night grids of the first and last dates.
+_FIRST_JD, _END_JD = 2378495.5, 2524959.5
+# Seconds "60" in an ISO 8601 time, with optional fraction and UTC offset.
+_LEAP_SECOND = re.compile(r"T\d{2}:\d{2}:(60)(?:[.,]\d+)?(?:[+-]\d{2}:?\d{2})?$")
 
 
 class TimeInputError(ValueError):
@@ -71,6 +85,12 @@ def _table_limits() -> tuple[float, float]:
     return float(last_measured), float(mjd[-1])
 
 
+@lru_cache(maxsize=1)
+def _table_start() -> float:
+    """MJD of the table's first entry."""
+    return float(np.asarray(_table()["MJD"].to_value("d"))[0])
+
+
 @quiet_erfa
 def _mjd_to_iso(mjd: float) -> str:
     return iso_z(Time(mjd, format="mjd", scale="utc"))
@@ -89,8 +109,14 @@ def earth_orientation_status(now: Time | None = None) -> EarthOrientationStatus:
 def check_earth_orientation(t: Time) -> str | None:
     """Warn (never fail) when the table is stale for instant t; return the message or None."""
     last_measured, predictions_end = _table_limits()
-    mjd = float(np.max(t.utc.mjd))
-    if mjd > predictions_end:
+    first = _table_start()
+    mjd_utc = np.atleast_1d(t.utc.mjd)
+    mjd, earliest = float(np.max(mjd_utc)), float(np.min(mjd_utc))
+    if earliest < first:
+        message = (f"Earth-orientation data begin {_mjd_to_iso(first)[:10]}; UT1-UTC is held "
+                   f"at its first value for {iso_z(Time(earliest, format='mjd'))} (sidereal "
+                   "time and pointing may be off by arcseconds to minutes of arc)")
+    elif mjd > predictions_end:
         message = (f"Earth-orientation predictions end {_mjd_to_iso(predictions_end)[:10]}; "
                    f"UT1-UTC is held at its last value for {iso_z(Time(mjd, format='mjd'))} "
                    "(pointing error may grow to several arcseconds; update astropy-iers-data)")
@@ -109,24 +135,73 @@ def parse_time(value) -> Time:
     """An astropy Time (UTC) from an astropy Time, a datetime, 'now', or an ISO 8601 string.
 
     ISO strings are UTC: a trailing 'Z' or '+00:00' is accepted, other offsets are converted.
+    A leap second (23:59:60) is accepted on the days UTC inserted one. Times outside the years
+    FIRST_YEAR..LAST_YEAR raise TimeInputError.
     """
     if isinstance(value, Time):
+        jd = np.asarray(value.jd1) + np.asarray(value.jd2)
+        if np.size(jd) and not (np.min(jd) >= _FIRST_JD and np.max(jd) < _END_JD):
+            worst = np.ravel(value)[int(np.argmax(np.abs(np.ravel(jd) - 2451545.0)))]
+            raise TimeInputError(f"time {worst.utc.isot}Z {_OUTSIDE_YEARS}")
         return value.utc
     if isinstance(value, _dt.datetime):
         if value.tzinfo is not None:
             value = value.astimezone(_dt.timezone.utc).replace(tzinfo=None)
+        check_year(value.year, f"time {value.isoformat()!r}")
         return Time(value, scale="utc")
     text = str(value).strip()
     if text.lower() == "now":
         return Time.now().utc
+    normalized = text.replace("Z", "+00:00").replace("z", "+00:00")
+    leap = _LEAP_SECOND.search(normalized)
+    if leap is not None:
+        return _leap_second(text, normalized[:leap.start(1)] + "59" + normalized[leap.end(1):])
+    parsed = _utc_datetime(text, normalized)
+    return Time(parsed, scale="utc")
+
+
+_OUTSIDE_YEARS = (f"is outside the years {FIRST_YEAR} to {LAST_YEAR} (the span of the time "
+                  "scales and models used here)")
+
+
+def check_year(year: int, what: str) -> None:
+    """TimeInputError('<what> is outside the years 1800 to 2200 ...') for a year outside."""
+    if not FIRST_YEAR <= year <= LAST_YEAR:
+        raise TimeInputError(f"{what} {_OUTSIDE_YEARS}")
+
+
+def _utc_datetime(text: str, normalized: str) -> _dt.datetime:
+    """A naive UTC datetime from ISO 8601 text, checked against the year span."""
     try:
-        parsed = _dt.datetime.fromisoformat(text.replace("Z", "+00:00").replace("z", "+00:00"))
+        parsed = _dt.datetime.fromisoformat(normalized)
     except ValueError:
         raise TimeInputError(f"time {text!r} is not ISO 8601 UTC (e.g. 2027-01-20T23:10:00Z) "
                              "or 'now'") from None
+    check_year(parsed.year, f"time {text!r}")
     if parsed.tzinfo is not None:
-        parsed = parsed.astimezone(_dt.timezone.utc).replace(tzinfo=None)
-    return Time(parsed, scale="utc")
+        try:
+            parsed = parsed.astimezone(_dt.timezone.utc).replace(tzinfo=None)
+        except OverflowError:
+            raise TimeInputError(f"time {text!r} {_OUTSIDE_YEARS}") from None
+        check_year(parsed.year, f"time {text!r}")
+    return parsed
+
+
+def _leap_second(text: str, one_second_earlier: str) -> Time:
+    """The instant of a leap second written as hh:mm:60, read as the second after :59.
+
+    Leap seconds end a UTC day on which TAI-UTC steps by one second (ERFA dat, from the IERS
+    leap-second table); any other :60 is refused.
+    """
+    before = _utc_datetime(text, one_second_earlier)
+    day = before.date()
+    after = day + _dt.timedelta(days=1)
+    inserted = (erfa.dat(after.year, after.month, after.day, 0.0)
+                - erfa.dat(day.year, day.month, day.day, 0.0)) > 0.5
+    if before.time().replace(microsecond=0) != _dt.time(23, 59, 59) or not inserted:
+        raise TimeInputError(f"time {text!r} names a leap second UTC never had (leap seconds "
+                             "are 23:59:60 UTC on the days the leap-second table lists)")
+    return Time(f"{day.isoformat()}T23:59:60.{before.microsecond:06d}", scale="utc")
 
 
 @quiet_erfa

@@ -19,6 +19,7 @@ from .constants import RAD_TO_DEG
 from .horizon_geometry import (SIDEREAL_DEG_PER_S, altaz_from_ha, altitude_for_airmass,
                                ha_at_altitude, observed_altitude, true_altitude_for_observed)
 from .positions import positions
+from .ranges import checked
 from .site import Site
 from .sky_track import SkyTrack
 from .targets import Targets
@@ -42,6 +43,15 @@ class Constraints:
     moon_separation: float = 0.0
     moon_scale: bool = False
     sample_step: float = 300.0
+
+    def __post_init__(self):
+        # Refuse what no sky allows (95 deg would act like 85, NaN like no limit at all).
+        if self.min_altitude is not None:
+            checked(self.min_altitude, "min_altitude", -90.0, 90.0, unit="deg")
+        if self.max_airmass is not None:
+            checked(self.max_airmass, "max_airmass", 1.0)
+        checked(self.moon_separation, "moon_separation", 0.0, 180.0, unit="deg")
+        checked(self.sample_step, "sample_step", 0.0, lo_open=True, unit="s")
 
     def altitude_limit(self, site: Site) -> float:
         """The observed altitude every window must stay above."""
@@ -89,6 +99,7 @@ class _Geometry:
         self.lat = site.latitude
         # Hour angle of date at t_mid; at other times it grows at the sidereal rate.
         self.ha_mid = wrap_pm180(ctx.site.last_rad * RAD_TO_DEG - self.ra)
+        self.last_mid_deg = float(ctx.site.last_rad * RAD_TO_DEG)
         s = ctx.site
         self.refraction = (s.refa, s.refb, s.refraction_join, s.refraction_horizon)
 
@@ -98,6 +109,11 @@ class _Geometry:
     def observed_altaz(self, idx, t):
         alt, az = altaz_from_ha(self.ha(idx, t), self.dec[idx], self.lat)
         return observed_altitude(alt, *self.refraction), az
+
+    def local_sidereal_deg(self, t):
+        """Local apparent sidereal time (deg, 0-360) at times t (seconds)."""
+        return np.mod(self.last_mid_deg + SIDEREAL_DEG_PER_S * (np.asarray(t) - self.t_mid),
+                      360.0)
 
     def time_of_ha(self, idx, ha_deg):
         return self.t_mid + (ha_deg - self.ha_mid[idx]) / SIDEREAL_DEG_PER_S

@@ -20,22 +20,24 @@ Results::
     write_result(columns, meta, "out.votable", "votable", units={"alt": "deg"})
 
 Angles and epochs: parse_ra, parse_dec, parse_epoch; format_ra_hms, format_dec_dms,
-format_hours. Atomic saves: atomic_write_bytes, atomic_write_text.
+format_hours, sidereal_time_text. Atomic saves: atomic_write_bytes, atomic_write_text.
 """
-from .angles import format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra
+from .angles import (format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra,
+                     sidereal_time_text)
 from .atomic import atomic_write_bytes, atomic_write_text
 from .epochs import parse_epoch
-from .errors import InputError, SkippedRowWarning
+from .errors import InputError, SkippedRowWarning, TargetValueWarning
 from .peopletable import format_people_table
 from .results import RESULT_FORMATS, format_result, write_result
 from .sitefile import parse_site_spec, read_site, read_site_file
 from .targetfile import TARGET_FORMATS, read_targets, target_format, write_targets
 
 __all__ = [
-    "InputError", "SkippedRowWarning",
+    "InputError", "SkippedRowWarning", "TargetValueWarning",
     "read_targets", "write_targets", "target_format", "TARGET_FORMATS",
     "read_site", "read_site_file", "parse_site_spec",
     "write_result", "format_result", "format_people_table", "RESULT_FORMATS",
     "parse_ra", "parse_dec", "parse_epoch", "format_ra_hms", "format_dec_dms", "format_hours",
+    "sidereal_time_text",
     "atomic_write_bytes", "atomic_write_text",
 ]

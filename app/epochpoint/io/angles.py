@@ -8,9 +8,11 @@ seconds must be below 60, hours below 24 and |dec| at most 90.
 
 The formatters turn degree arrays into sexagesimal text for people; they round once, in units of
 the last printed digit, so 59.999 s never prints as 60.0 s. NaN formats as an empty string.
+`sidereal_time_text` gives the one form of a sidereal time shown to people: 'LST hh:mm:ss.s'.
 """
 from __future__ import annotations
 
+import math
 import re
 
 import numpy as np
@@ -129,3 +131,16 @@ def format_hours(angle_deg, decimals: int = 0):
     """A signed hour angle in degrees as '+hh:mm:ss', wrapped into [-12h, +12h)."""
     wrapped_deg = np.mod(np.asarray(angle_deg, dtype=float) + 180.0, 360.0) - 180.0
     return _format_sexagesimal(wrapped_deg / DEG_PER_HOUR, decimals, True, None)
+
+
+def sidereal_time_text(hours: float) -> str:
+    """A sidereal time in hours as people read it: 'LST hh:mm:ss.s', 0 to 24 h, no sign.
+
+    The one formatter shared by the command line and the app, so both print it alike. The
+    value is wrapped into [0, 24) h before and after rounding to 0.1 s (23:59:59.96 prints as
+    00:00:00.0); NaN gives 'LST --'.
+    """
+    hours = float(hours)
+    if not math.isfinite(hours):
+        return "LST --"
+    return "LST " + _format_sexagesimal(hours % 24.0, 1, False, 24)

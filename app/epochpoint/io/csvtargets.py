@@ -1,7 +1,9 @@
 """Target lists as CSV: what people type in a spreadsheet or an editor, and what we write back.
 
 Reading: UTF-8 (a byte-order mark is allowed), a header row of case-insensitive column names,
-`#` comment lines and blank lines skipped anywhere, spaces around cells ignored. Values are in
+`#` comment lines and blank lines skipped anywhere, spaces around cells ignored. One comment
+line before the header may state the epoch of every row without one: `# catalogue_epoch: 2016.0`
+(targetchecks.py). Values are in
 our units (degrees, mas, mas/yr, km/s; ra/dec may be sexagesimal). Line numbers in messages are
 the file's own, header = line 1 (counting comment lines too).
 
@@ -13,11 +15,13 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 
 import numpy as np
 
 from .errors import InputError
 from .filebytes import decode_utf8
+from .targetchecks import CATALOGUE_EPOCH_KEY
 from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS, match_columns
 from .targetrows import RawColumn, RawTable
 
@@ -33,6 +37,25 @@ def _content_lines(text: str, line_numbers: list):
         if stripped and not stripped.startswith("#"):
             line_numbers.append(number)
             yield line + "\n"
+
+
+_EPOCH_STATEMENT = re.compile(rf"#\s*{CATALOGUE_EPOCH_KEY}\s*[:=]\s*(.*?)\s*$", re.IGNORECASE)
+
+
+def _stated_epoch(path: str, text: str) -> tuple[str, int] | None:
+    """(epoch text, line) of a `# catalogue_epoch: ...` comment before the header, if any."""
+    found = None
+    for number, line in enumerate(text.splitlines(), start=1):
+        stripped = line.strip()
+        if stripped and not stripped.startswith("#"):
+            break
+        match = _EPOCH_STATEMENT.fullmatch(stripped)
+        if match is not None:
+            if found is not None:
+                raise InputError(path, f"states {CATALOGUE_EPOCH_KEY} twice (lines {found[1]} "
+                                       f"and {number})", line=number)
+            found = (match.group(1), number)
+    return found
 
 
 def _rows(path: str, text: str):
@@ -53,7 +76,8 @@ def _rows(path: str, text: str):
 
 def read_csv_targets(path: str, data: bytes) -> RawTable:
     """The rows of a CSV target file, ready for build_targets."""
-    records = _rows(path, decode_utf8(path, data))
+    text = decode_utf8(path, data)
+    records = _rows(path, text)
     first = next(records, None)
     if first is None:
         raise InputError(path, "is empty (no header row)")
@@ -84,7 +108,7 @@ def read_csv_targets(path: str, data: bytes) -> RawTable:
         columns[canonical] = RawColumn(labels[index], cells, cells == "")
     return RawTable(path=path, row_numbers=np.array([line for line, _ in rows]), row_word="line",
                     columns=columns, extra={labels[i]: grid[:, i] for i in extra},
-                    row_problems=row_problems)
+                    row_problems=row_problems, catalogue_epoch=_stated_epoch(path, text))
 
 
 def _drop_unnamed_columns(path, header_line, labels, rows):

@@ -60,3 +60,8 @@ class InputError(ValueError):
 
 class SkippedRowWarning(UserWarning):
     """A bad row left out of a target list read with skip_bad_rows=True."""
+
+
+class TargetValueWarning(UserWarning):
+    """Target rows that were read but need a word: a parallax of zero or less (distance taken
+    as unknown) or a motion beyond any known star's. One warning per kind per file."""

@@ -1,19 +1,18 @@
-"""Catalogue reference frames to ICRS: FK5 and FK4 rows are converted on load with astropy.
+"""Catalogue reference frames to ICRS: FK5 and FK4 rows are converted on load.
 
 A row's `frame` is icrs (default), fk5 (mean equator and equinox of `equinox`, default J2000.0)
-or fk4 (Besselian system with the E-terms of aberration, equinox default B1950.0). For FK4 the
-row's epoch is also the FK4 observation time, which fixes astropy's FK4-to-FK5 rotation
-(Standish 1982, A&A 115, 20; Aoki et al. 1983, A&A 128, 263).
+or fk4 (Besselian system with the E-terms of aberration, equinox default B1950.0).
 
-Positions go through astropy.coordinates exactly (FK4 -> FK4 without E-terms -> FK5 -> ICRS,
-or FK5 -> ICRS). Proper motions ride along as a tangential velocity vector at a nominal distance
-(`NOMINAL_DISTANCE_PC`, so rows without parallax convert too): the FK5/FK4-without-E-terms to
-ICRS steps are matrix transforms in astropy, which rotate that vector exactly. The one non-linear
-step, removing the FK4 E-terms of aberration, is applied by astropy to the direction only and the
-velocity vector is kept: this neglects the change of the E-terms along the star's path, a
-relative error below |E| = 1.7e-6 of the proper motion (0.002 mas/yr for 1"/yr). astropy's own
-finite-difference velocity through that step would add ~1 mas/yr of rounding noise instead.
-Parallax and radial velocity are unchanged: these frames differ by rotations only.
+FK5 rows go through astropy.coordinates (FK5 -> ICRS: precession to J2000.0 and the frame
+bias, IERS Conventions 2010, sec. 5.5.3). Proper motions ride along as a tangential velocity
+vector at a nominal distance (`NOMINAL_DISTANCE_PC`, so rows without parallax convert too):
+these steps are fixed rotations, which astropy applies to that vector exactly. Parallax and
+radial velocity are unchanged.
+
+FK4 rows are first converted to FK5 J2000.0 at their own epoch by the full Standish (1982) /
+Aoki et al. (1983) transformation, including the time derivative of the FK4-to-FK5 rotation
+(fk4.py: IAU SOFA fk425, or fk45z for rows without proper motion, which are read as at rest
+in FK5), then go the FK5 way.
 """
 from __future__ import annotations
 
@@ -21,11 +20,12 @@ import warnings
 
 import astropy.units as u
 import numpy as np
-from astropy.coordinates import FK4, FK5, ICRS, CartesianRepresentation, FK4NoETerms
+from astropy.coordinates import FK5, ICRS
 from astropy.time import Time
 
 from .epochs import split_epoch
 from .errors import quote
+from .fk4 import fk4_to_fk5_j2000
 
 FRAMES = ("icrs", "fk5", "fk4")
 DEFAULT_EQUINOX = {"fk5": "J2000.0", "fk4": "B1950.0"}
@@ -59,25 +59,33 @@ def parse_equinox(text: str, frame: str) -> str:
     return f"{kind}{year!r}"
 
 
-def convert_to_icrs(frame: np.ndarray, equinox: np.ndarray, astrometry: dict) -> dict:
+def convert_to_icrs(frame: np.ndarray, equinox: np.ndarray, astrometry: dict,
+                    motion_given: np.ndarray | None = None) -> dict:
     """ICRS astrometry for rows given in FK5/FK4 (see module docstring); ICRS rows are untouched.
 
     frame, equinox: per-row strings from parse_frame/parse_equinox. astrometry: arrays ra, dec
     (deg), epoch (Julian year TDB), pm_ra_cosdec, pm_dec (mas/yr), parallax (mas),
-    radial_velocity (km/s). Returns a new dict of the same arrays. One astropy call per
-    distinct (frame, equinox), vectorized over its rows.
+    radial_velocity (km/s). motion_given: per row, False where the file gave no proper motion
+    (an FK4 row is then read as at rest in FK5); default: given on every row. Returns a new
+    dict of the same arrays. One conversion per distinct (frame, equinox), vectorized over its
+    rows.
     """
     out = {key: np.array(value, dtype=float) for key, value in astrometry.items()}
+    given = (np.ones(len(out["ra"]), dtype=bool) if motion_given is None
+             else np.asarray(motion_given, dtype=bool))
     for key in sorted(set(zip(frame, equinox)) - {("icrs", "")}):
         rows = np.flatnonzero((frame == key[0]) & (equinox == key[1]))
-        converted = _group_to_icrs(key[0], key[1], {k: v[rows] for k, v in out.items()})
+        group = {k: v[rows] for k, v in out.items()}
+        if key[0] == "fk4":
+            group = fk4_to_fk5_j2000(key[1], group, given[rows])
+        converted = _fk5_to_icrs(DEFAULT_EQUINOX["fk5"] if key[0] == "fk4" else key[1], group)
         for k, v in converted.items():
             out[k][rows] = v
     return out
 
 
-def _group_to_icrs(frame: str, equinox: str, a: dict) -> dict:
-    """ICRS ra, dec and proper motion of rows that share one frame and equinox."""
+def _fk5_to_icrs(equinox: str, a: dict) -> dict:
+    """ICRS ra, dec and proper motion of FK5 rows that share one equinox."""
     equinox_time = Time(equinox)  # 'J2000.0' / 'B1950.0' strings, as astropy reads them
     position = dict(ra=a["ra"] * u.deg, dec=a["dec"] * u.deg)
     # The tangential velocity at a nominal distance; radial velocity and distance are
@@ -88,18 +96,7 @@ def _group_to_icrs(frame: str, equinox: str, a: dict) -> dict:
                   radial_velocity=np.zeros(len(a["ra"])) * (u.km / u.s))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # ERFA "dubious year" for epochs far from today
-        if frame == "fk5":
-            source = FK5(**position, **motion, equinox=equinox_time)
-        else:
-            obstime = Time(a["epoch"], format="jyear", scale="tdb")
-            without_eterms = FK4NoETerms(equinox=equinox_time, obstime=obstime)
-            # Remove the E-terms from the direction (astropy, exact), keep the velocity vector.
-            direction = FK4(**position, equinox=equinox_time, obstime=obstime).transform_to(
-                without_eterms).cartesian
-            velocity = FK4(**position, **motion, equinox=equinox_time, obstime=obstime).velocity
-            source = without_eterms.realize_frame(CartesianRepresentation(
-                direction.xyz * (NOMINAL_DISTANCE_PC * u.pc), differentials=velocity))
-        icrs = source.transform_to(ICRS())
+        icrs = FK5(**position, **motion, equinox=equinox_time).transform_to(ICRS())
     return dict(ra=_wrap_degrees(icrs.ra.to_value(u.deg)), dec=icrs.dec.to_value(u.deg),
                 epoch=a["epoch"], pm_ra_cosdec=icrs.pm_ra_cosdec.to_value(u.mas / u.yr),
                 pm_dec=icrs.pm_dec.to_value(u.mas / u.yr), parallax=a["parallax"],

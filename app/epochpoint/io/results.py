@@ -5,6 +5,7 @@ names as strings), plus `meta`, a dict of scalars such as {"time": "2027-01-20T2
 NaN (or None) means "no value": an empty CSV cell, JSON null, a masked ECSV/VOTable cell.
 
 - csv: `# key: value` comment lines for meta, a header row, shortest round-trip float text.
+  (io.resultstream writes csv, json and ecsv chunk by chunk with the same text.)
 - json: a list of objects, one per row, exactly that shape (meta is not included); plain
   Python numbers only, NaN -> null (RFC 8259 has no NaN).
 - ecsv / votable: astropy.table with units from `units`; meta in the ECSV header, and as
@@ -13,9 +14,7 @@ NaN (or None) means "no value": an empty CSV cell, JSON null, a masked ECSV/VOTa
 """
 from __future__ import annotations
 
-import csv
 import io
-import json
 import os
 
 import numpy as np
@@ -25,59 +24,23 @@ from .astropytables import table_bytes
 from .atomic import atomic_write_text
 from .errors import InputError
 from .peopletable import format_people_table
+from .resultstream import python_value, write_chunks
 
 RESULT_FORMATS = ("csv", "json", "ecsv", "votable", "table")
-
-
-def _python_value(v):
-    """A plain JSON-able Python value: None for no value, float/int/bool/str otherwise."""
-    if v is None:
-        return None
-    if isinstance(v, (bool, np.bool_)):
-        return bool(v)
-    if isinstance(v, (int, np.integer)):
-        return int(v)
-    if isinstance(v, (float, np.floating)):
-        return float(v) if np.isfinite(v) else None
-    if isinstance(v, (list, tuple, np.ndarray)):  # e.g. a list of windows per target
-        return [_python_value(x) for x in v]
-    if isinstance(v, dict):
-        return {str(k): _python_value(x) for k, x in v.items()}
-    return str(v)
-
-
-def _csv_cell(v) -> str:
-    v = _python_value(v)
-    if v is None:
-        return ""
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    return repr(v) if isinstance(v, float) else str(v)
-
-
-def _one_line(value) -> str:
-    return " ".join(str(value).split())
 
 
 def result_csv(columns, meta) -> str:
     """CSV text: `# key: value` meta lines, a header row, one row per result row."""
     out = io.StringIO()
-    for key, value in (meta or {}).items():
-        out.write(f"# {key}: {_one_line(value)}\n")
-    writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(list(columns))
-    cells = [[_csv_cell(v) for v in np.asarray(values, dtype=object)]
-             for values in columns.values()]
-    writer.writerows(zip(*cells))
+    write_chunks(out, [columns], list(columns), meta, "csv")
     return out.getvalue()
 
 
 def result_json(columns) -> str:
     """A JSON list with one object per row, one row per line."""
-    names = list(columns)
-    values = [[_python_value(v) for v in np.asarray(col, dtype=object)] for col in columns.values()]
-    rows = [json.dumps(dict(zip(names, row)), allow_nan=False) for row in zip(*values)]
-    return "[\n" + ",\n".join(rows) + "\n]\n" if rows else "[]\n"
+    out = io.StringIO()
+    write_chunks(out, [columns], list(columns), None, "json")
+    return out.getvalue()
 
 
 def result_table(columns, meta, units) -> Table:
@@ -94,7 +57,7 @@ def result_table(columns, meta, units) -> Table:
             table[name] = MaskedColumn(text, mask=none, unit=unit) if none.any() else text
         else:
             table[name] = MaskedColumn(values, unit=unit) if unit else values
-    table.meta.update({str(k): _python_value(v) for k, v in (meta or {}).items()})
+    table.meta.update({str(k): python_value(v) for k, v in (meta or {}).items()})
     return table
 
 

@@ -7,7 +7,8 @@ Site file schema (Epochpoint's own; TOML 1.0, read with tomllib)::
     latitude = -31.2        # degrees, north positive (required)
     longitude = -69.9       # degrees, east positive (required)
     height = 2410.0         # metres above the WGS84 ellipsoid (optional, default 0)
-    timezone = "America/Argentina/San_Juan"   # IANA name, checked with zoneinfo (default UTC)
+    timezone = "America/Argentina/San_Juan"   # IANA name, checked with zoneinfo (optional;
+                            # default: the zone that holds the coordinates, found offline)
 
     [weather]               # default conditions (optional); command-line options override them
     pressure = 760.0        # hPa; omit: standard atmosphere at the site height; 0: no refraction
@@ -26,7 +27,8 @@ The same tables, parsed into a dict from another container (the JSON plan file),
 Site with `site_from_tables(tables, path)`; `site_to_tables(site)` writes them back.
 
 The string form `LAT,LON[,HEIGHT]` gives degrees (north and east positive) and metres, e.g.
-`-24.6,-70.4,2635`; the height defaults to 0 and the weather to Site's defaults.
+`-24.6,-70.4,2635`; the height defaults to 0, the weather to Site's defaults and the time zone
+to the one that holds the coordinates.
 """
 from __future__ import annotations
 
@@ -140,13 +142,16 @@ def site_from_tables(tables: dict, path) -> Site:
 
 def site_to_tables(site: Site) -> dict:
     """The tables of a site file for `site` (the inverse of site_from_tables): every value is
-    written out, so reading them back gives an equal Site. The horizon is written as points."""
+    written out, so reading them back gives an equal Site (a zone found from the coordinates is
+    left out, to be found again). The horizon is written as points."""
     tables = {
         "site": {"name": site.name, "latitude": site.latitude, "longitude": site.longitude,
-                 "height": site.height, "timezone": site.timezone},
+                 "height": site.height},
         "weather": {"pressure": site.pressure, "temperature": site.temperature,
                     "humidity": site.humidity, "wavelength": site.wavelength},
     }
+    if not site.timezone_from_coordinates:
+        tables["site"]["timezone"] = site.timezone
     tables.update(interlocks_to_tables(site.interlocks))
     return tables
 

@@ -14,6 +14,9 @@
     meridian_limit = 5.0      # German mounts: degrees of hour angle it may track past the meridian
     slew_rate = 3.0           # degrees per second on each axis
     settle = 10.0             # seconds after each slew
+    park_ha = -90.0           # where it rests before the night: hour angle, degrees, west
+    park_dec = 90.0           #   positive, and declination; both or neither (default: the
+                              #   elevated pole, counterweight down: HA -90 German, else 0)
 
     [safety]
     sun_avoidance = 30.0      # degrees: never point closer to the Sun (0 turns it off)
@@ -34,7 +37,8 @@ from .filebytes import decode_utf8, read_file_bytes
 
 MOUNT_KEYS = {"type": "mount_type", "min_altitude": "min_altitude", "ha_east": "ha_east",
               "ha_west": "ha_west", "dec_min": "dec_min", "dec_max": "dec_max",
-              "meridian_limit": "meridian_limit", "slew_rate": "slew_rate", "settle": "settle"}
+              "meridian_limit": "meridian_limit", "slew_rate": "slew_rate", "settle": "settle",
+              "park_ha": "park_ha", "park_dec": "park_dec"}
 SAFETY_KEYS = ("sun_avoidance",)
 HORIZON_KEYS = ("points", "file")
 
@@ -130,7 +134,8 @@ def interlocks_to_tables(interlocks: Interlocks) -> dict:
     """The [horizon], [mount] and [safety] tables for `interlocks` (the inverse of
     read_interlocks); a horizon mask is written as [azimuth, altitude] points."""
     mount = interlocks.mount
-    tables = {"mount": {key: getattr(mount, field) for key, field in MOUNT_KEYS.items()},
+    tables = {"mount": {key: getattr(mount, field) for key, field in MOUNT_KEYS.items()
+                        if getattr(mount, field) is not None},
               "safety": {"sun_avoidance": float(interlocks.sun_avoidance)}}
     if interlocks.horizon is not None:
         mask = interlocks.horizon

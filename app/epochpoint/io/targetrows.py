@@ -22,9 +22,8 @@ from .epochs import EPOCH_MAX_YEAR, EPOCH_MIN_YEAR, parse_epoch
 from .errors import InputError, SkippedRowWarning, quote
 from .frames import convert_to_icrs, parse_equinox, parse_frame
 from .planningfields import PARSERS
+from .targetchecks import DEFAULT_EPOCH_JYEAR, fill_epochs, warn_about_rows
 from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS
-
-DEFAULT_EPOCH_JYEAR = 2000.0
 
 
 @dataclass
@@ -48,6 +47,9 @@ class RawTable:
     extra: dict = field(default_factory=dict)  # label -> array, carried along untouched
     # Problems the reader found (e.g. a wrong cell count): row index -> (label, message).
     row_problems: dict = field(default_factory=dict)
+    # The file's one epoch for all rows, as (text, line or None), when it states one
+    # (targetchecks.py says how each format states it).
+    catalogue_epoch: tuple | None = None
 
     def __len__(self) -> int:
         return len(self.row_numbers)
@@ -83,8 +85,8 @@ RULES = {
                         f"is outside the years {EPOCH_MIN_YEAR:.0f} to {EPOCH_MAX_YEAR:.0f}"),
     "pm_ra_cosdec": ColumnRule(),
     "pm_dec": ColumnRule(),
-    "parallax": ColumnRule(out_of_range=lambda v: v < 0.0,
-                           range_message="is negative (parallax must be 0 or more)"),
+    # Zero or negative: distance unknown (targetchecks.warn_about_rows).
+    "parallax": ColumnRule(),
     "radial_velocity": ColumnRule(),
     **{col: ColumnRule(parse_number, np.nan, True, lambda v: v < 0.0,
                        "is negative (an error must be 0 or more)") for col in ERROR_COLUMNS},
@@ -237,6 +239,8 @@ def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> T
         values[canonical], column_problems = parse_column(column, RULES[canonical])
         for i, message in column_problems.items():
             note(i, column.label, message)
+    # A moving row needs an epoch: its cell, or the one the file states for all rows.
+    fill_epochs(raw, values, note)
     frames, equinoxes = _frames(raw, note)
     _check_planning_fields(raw, note)
 
@@ -248,7 +252,18 @@ def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> T
         keep[i] = False
     if not keep.any():
         raise InputError(raw.path, f"no usable targets: all {len(raw)} rows have errors")
+    warn_about_rows(raw, values, message_names, keep)
     return _assemble(raw, names, values, frames, equinoxes, keep)
+
+
+def _motion_given(raw: RawTable) -> np.ndarray:
+    """Per row: True where a proper-motion cell is filled (an FK4 row without one is read as
+    at rest in FK5, see frames.py)."""
+    given = np.zeros(len(raw), dtype=bool)
+    for canonical in ("pm_ra_cosdec", "pm_dec"):
+        if canonical in raw.columns:
+            given |= ~np.asarray(raw.columns[canonical].missing, dtype=bool)
+    return given
 
 
 def _assemble(raw, names, values, frames, equinoxes, keep) -> Targets:
@@ -257,7 +272,8 @@ def _assemble(raw, names, values, frames, equinoxes, keep) -> Targets:
     astrometry = {c: (values[c][keep] if c in values else
                       np.full(n_kept, RULES[c].if_missing, dtype=float))
                   for c in ASTROMETRY_COLUMNS}
-    astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry)
+    astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry,
+                                 _motion_given(raw)[keep])
     errors = {c: values[c][keep] for c in UNCERTAINTY_COLUMNS if c in values}
     extra = {label: np.asarray(column)[keep] for label, column in raw.extra.items()}
     if names is None and not keep.all():

@@ -43,6 +43,8 @@ STATES = ("Idle", "Ok", "Busy", "Alert")
 _POLL_S = 0.2
 _RECV_BYTES = 65536
 _MESSAGES_KEPT = 100
+# The longest single condition wait; wait_for loops until its deadline.
+WAIT_SLICE_S = 60.0
 # States remembered per property, so a waiter never misses a short Busy between two wake-ups.
 _STATES_KEPT = 64
 _SEXAGESIMAL = re.compile(r"^\s*([+-]?)\s*(\d+(?:\.\d*)?)(?:[:;\s]+(\d+(?:\.\d*)?))?"
@@ -265,7 +267,8 @@ class IndiClient:
                 if remaining <= 0.0:
                     raise IndiTimeout(f"no answer from the INDI server {self.address} within "
                                       f"{timeout_s:g} s while waiting for {what}")
-                self._cond.wait(remaining)
+                # Waits in slices: the OS refuses a single wait of inf or 1e300 s.
+                self._cond.wait(min(remaining, WAIT_SLICE_S))
 
     # -- commanding -------------------------------------------------------------------------
 

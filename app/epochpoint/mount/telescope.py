@@ -29,8 +29,9 @@ from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
 from ..core.site import Site
 from ..core.targets import Targets
 from ..core.vectors import separation, unit_vectors
-from .errors import IndiTimeout, InterlockRefused, MountFailed
+from .errors import ConnectionLost, IndiTimeout, InterlockRefused, MountError, MountFailed
 from .indi_client import IndiClient, Vector, parse_address
+from .options import checked_residual, checked_wait
 from .pointing import Pointing, pointing_for
 
 EOD_COORD = "EQUATORIAL_EOD_COORD"
@@ -178,11 +179,13 @@ class Telescope:
     def __init__(self, client: IndiClient, device: str):
         self.client, self.device = client, device
         self.aborts = 0  # how many aborts were sent, so a waiting slew knows it was stopped
+        self.motions = 0  # how many motion commands were sent (coordinates after SLEW/TRACK)
 
     @classmethod
     def open(cls, address: str, device: str | None = None, *, timeout_s: float = 10.0,
              connect_device: bool = True, notify: Notify = _silent) -> "Telescope":
         """Connect to the server at "HOST:PORT", find the telescope and (by default) CONNECT it."""
+        timeout_s = checked_wait(timeout_s, "connection timeout")
         host, port = parse_address(address)
         client = IndiClient(host, port, connect_timeout_s=min(timeout_s, 5.0)).open()
         try:
@@ -348,6 +351,8 @@ class Telescope:
             ra_deg, dec_deg = pointing.ra_apparent_deg, pointing.dec_apparent_deg
         else:
             ra_deg, dec_deg = pointing.ra_j2000_deg, pointing.dec_j2000_deg
+        if not sync:
+            self.motions += 1  # counted before sending: a lost connection may still have sent it
         serial = self.client.send_new(self.device, coords, {"RA": ra_deg / 15.0, "DEC": dec_deg})
         return _Command(coords, ra_deg, dec_deg, serial, sync)
 
@@ -388,8 +393,7 @@ class Telescope:
             return self.client.wait_for(lambda: self._state(prop) != "Busy" and self._state(prop),
                                         remaining, f"{device} to end the slew")
         except IndiTimeout:
-            raise IndiTimeout(f"the slew of {device} did not end within {timeout_s:g} s; it may "
-                              "still be moving (abort stops it)") from None
+            raise IndiTimeout(f"the slew of {device} did not end within {timeout_s:g} s") from None
 
 
 def _utc_offset_hours(site: Site, instant: datetime) -> float:
@@ -423,14 +427,53 @@ def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
     With wait, follow the motion until it ends; when the reported coordinates differ from the
     target's place by more than tolerance_arcsec, issue one refining slew (interlocks checked
     again) and report the residual. An abort() from another thread while this waits ends the
-    slew quietly: no refinement, `aborted` set. Raises InterlockRefused (nothing sent),
-    ConnectionLost, IndiTimeout or MountFailed (Alert, parked, no such property).
+    slew quietly: no refinement, `aborted` set. Raises ValueError for a timeout or tolerance
+    out of range and InterlockRefused, both before anything is sent; ConnectionLost,
+    IndiTimeout or MountFailed (Alert, parked, no such property). Any failure after the motion
+    was sent first sends an abort (when the connection allows) and says in its message that
+    the mount may still be moving.
     """
+    # Every option is checked before anything is sent.
+    timeout_s = checked_wait(timeout_s)
+    tolerance_arcsec = checked_residual(tolerance_arcsec)
     action = "sync" if sync else "slew"
-    aborts_before = scope.aborts
+    aborts_before, motions_before = scope.aborts, scope.motions
     stopped = lambda: scope.aborts != aborts_before  # noqa: E731
     pointing = checked_pointing(targets, site, name)
     notify(CAUTION)
+    try:
+        return _point(scope, targets, site, name, pointing, sync=sync, wait=wait,
+                      timeout_s=timeout_s, tolerance_arcsec=tolerance_arcsec, notify=notify,
+                      stopped=stopped)
+    except Exception as err:
+        if scope.motions == motions_before:
+            raise  # nothing that moves the mount was sent
+        raise _failed_in_motion(scope, err, notify) from None
+
+
+def _failed_in_motion(scope: Telescope, err: Exception, notify: Notify) -> MountError:
+    """The error of a slew that failed after its motion was sent: an abort is sent first
+    (unless the connection is gone) and the message says the mount may still be moving."""
+    text = " ".join(str(err).split()) or type(err).__name__
+    if isinstance(err, ConnectionLost):
+        return ConnectionLost(f"{text}; no abort could be sent: the mount may still be "
+                              "moving, stop it at the mount")
+    try:
+        notify("The slew failed: sending an abort.")
+        scope.abort()
+        said = "abort sent, but the mount may still be moving: check it"
+    except Exception as abort_err:  # noqa: BLE001 - reported in the message
+        said = (f"the abort failed too ({' '.join(str(abort_err).split())}): the mount may "
+                "still be moving, stop it at the mount")
+    kind = type(err) if isinstance(err, MountFailed) else MountFailed
+    return kind(f"{text}; {said}")
+
+
+def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: Pointing, *,
+           sync: bool, wait: bool, timeout_s: float, tolerance_arcsec: float, notify: Notify,
+           stopped: Callable[[], bool]) -> SlewReport:
+    """Send the command, then (with wait) follow it and refine once: see slew_to_target."""
+    action = "sync" if sync else "slew"
     command = scope.command(pointing, sync=sync)
     started = time.monotonic()
     notify(f"{action.capitalize()} {name}: "

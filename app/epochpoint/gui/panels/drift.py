@@ -281,13 +281,24 @@ class DriftPanel(QWidget):
         if not np.isfinite(major):
             self.ellipse_text.setText(f"{name}: position errors unknown in the catalogue.")
         else:
-            self.ellipse_text.setText(ellipse_text(major, minor, pa))
+            self.ellipse_text.setText(ellipse_text(major, minor, pa, self.ellipse_is_lower_bound()))
+
+    def ellipse_is_lower_bound(self) -> bool:
+        """True when the selected target's proper-motion errors are unknown (ellipse too small)."""
+        d = None if self.result is None else self.result["drift"]
+        return (d is not None and "error_lower_bound" in d and self.selected is not None
+                and bool(d["error_lower_bound"][self.selected]))
 
 
-def ellipse_text(major_mas: float, minor_mas: float, pa_deg: float) -> str:
-    """The ellipse in words, as shown under the plot."""
-    return (f"1σ error ellipse: semi-major {major_mas:.3f} mas, semi-minor {minor_mas:.3f} mas, "
-            f"position angle {pa_deg:.1f}° (east of north)")
+def ellipse_text(major_mas: float, minor_mas: float, pa_deg: float,
+                 lower_bound: bool = False) -> str:
+    """The ellipse in words, as shown under the plot; "≥" where it is a lower bound."""
+    at_least = "≥ " if lower_bound else ""
+    text = (f"1σ error ellipse: semi-major {at_least}{major_mas:.3f} mas, semi-minor "
+            f"{at_least}{minor_mas:.3f} mas, position angle {pa_deg:.1f}° (east of north)")
+    if lower_bound:
+        text += ". Proper-motion errors unknown: the true ellipse is at least this large."
+    return text
 
 
 def _qdate(date: dt.date) -> QDate:

@@ -19,7 +19,8 @@ COLUMNS = (
     ("name", "Target", ""),
     ("drift", "Drift (″)", "Angle between catalogue and propagated position"),
     ("drift_rate", "Rate (″/yr)", "How fast the drift grows"),
-    ("crossing", "Crossing (±1σ)", "When the drift equals the tolerance (1σ uncertainty)"),
+    ("crossing", "Crossing (±1σ)", "When the drift equals the tolerance (1σ uncertainty; "
+                                   "? where the catalogue gives no proper-motion errors)"),
     ("epoch", "Epoch", "Catalogue epoch (Julian year)"),
     ("catalogue", "Catalogue RA, Dec", "Catalogue position (ICRS) at the catalogue epoch"),
     ("propagated", "RA, Dec at the date", "Propagated barycentric position (ICRS) at the date"),
@@ -123,7 +124,7 @@ class DriftModel(QAbstractTableModel):
             return "never (no motion)" if d["drift_rate"][row] == 0 else "beyond 10000 yr"
         sigma = d["crossing_sigma_days"][row]
         if not np.isfinite(sigma):
-            return value[:10]
+            return value[:10] + " ± ?"  # the catalogue gives no errors for this motion
         return value[:10] + (f" ± {sigma:.1f} d" if sigma < 10 else f" ± {sigma:.0f} d")
 
 

@@ -613,7 +613,7 @@ class MountPanel(QWidget):
     def _on_motion_failed(self, err) -> None:
         self.motion_job = None
         text = one_line(err)
-        if isinstance(err, ConnectionLost):
+        if isinstance(err, ConnectionLost) and "may still be moving" not in text:
             text += " — the mount may still be moving: check it"
         self.report_label.setText(f"Not completed: {text}")
         self._colour(self.report_label, "danger")
