@@ -35,7 +35,9 @@ def _column(lo, hi):
 ra_cols = arrays(np.float64, N, elements=st.floats(0.0, 360.0, exclude_max=True,
                                                    allow_subnormal=False))
 dec_cols = _column(-90.0, 90.0)
-parallax_cols = _column(0.01, 800.0)
+# From 0.5 mas: a smaller parallax with 8"/yr would mean a space velocity of half the speed of
+# light or more, which propagation treats as distance unknown (ERFA starpv's VMAX).
+parallax_cols = _column(0.5, 800.0)
 pm_cols = _column(-8000.0, 8000.0)
 rv_cols = _column(-250.0, 250.0)
 

@@ -42,7 +42,12 @@ def _warning_line(message, category, *args, **kwargs):
 
 def main(argv=None) -> int:
     """Entry point of the console script; returns the exit status."""
-    args = build_parser().parse_args(argv)
+    try:
+        args = build_parser().parse_args(argv)
+    except SystemExit as done:
+        if not done.code:
+            raise  # --help and --version end here, as argparse intends
+        return done.code  # a usage error, already said in one line: like any input error
     warnings.showwarning = _warning_line
     warnings.filterwarnings("ignore", module="erfa")
     warnings.filterwarnings("ignore", module="astropy")

@@ -6,12 +6,14 @@ import sys
 
 import numpy as np
 
-from ..core.plan import DARKNESS_LEVELS, SCHEDULE_SECONDS, plan
+from ..core.plan import (DARKNESS_LEVELS, SCHEDULE_ITERATIONS, SCHEDULE_SECONDS,
+                         SCHEDULE_SEED, plan)
 from . import checks, common
 from .people import PeopleColumn, people_table
 
 FORMATS = ["table", "json", "csv"]
-# Longest schedule search the command line allows (an hour; the default takes 0.3 s).
+# Longest schedule search the command line allows (an hour; the default search stops on its
+# iteration limit after about 0.1 s on the demo).
 MAX_SCHEDULE_SECONDS = 3600.0
 
 
@@ -38,8 +40,15 @@ def add_parser(sub) -> None:
                    help="scale the Moon distance with the Moon's illuminated fraction")
     p.add_argument("--schedule-seconds", type=checks.number(0.0, MAX_SCHEDULE_SECONDS, unit="s"),
                    default=SCHEDULE_SECONDS, metavar="S",
-                   help=f"time the scheduler may spend improving the order "
-                        f"(default {SCHEDULE_SECONDS:g})")
+                   help=f"upper limit on the time the scheduler may spend improving the order "
+                        f"(default {SCHEDULE_SECONDS:g}); it normally stops earlier, after "
+                        f"--schedule-iterations")
+    p.add_argument("--schedule-iterations", type=checks.count(0), default=SCHEDULE_ITERATIONS,
+                   metavar="N", help=f"improvement rounds of the scheduler "
+                                     f"(default {SCHEDULE_ITERATIONS})")
+    p.add_argument("--seed", type=checks.count(0), default=SCHEDULE_SEED, metavar="N",
+                   help=f"seed of the scheduler's random choices: the same seed gives the same "
+                        f"order (default {SCHEDULE_SEED})")
     common.add_output_arguments(p, FORMATS)
     p.add_argument("--chart", metavar="FILE.png",
                    help="also draw observed altitude against time to a PNG file")
@@ -53,7 +62,8 @@ def run(args) -> int:
     result = plan(targets, site, args.night, darkness=args.darkness,
                   min_altitude=args.min_altitude, max_airmass=args.max_airmass,
                   moon_separation=args.moon_separation, moon_scale=args.moon_scaled,
-                  max_seconds=args.schedule_seconds)
+                  max_seconds=args.schedule_seconds, seed=args.seed,
+                  max_iterations=args.schedule_iterations)
     if args.chart:
         from ..charts import save_night_chart
         save_night_chart(result, args.chart, top_n=args.chart_targets)
@@ -147,7 +157,19 @@ def _people(result, data) -> str:
                                         PeopleColumn("Target", "name", str),
                                         PeopleColumn("Slew s", "slew", "{:5.0f}")],
                                 [f"Observing order ({len(data['schedule'])} blocks):"])
+    text += _search_line(data["search"])
     if data["unscheduled"]:
         text += "\nNot scheduled:\n" + "".join(f"  {u['name']}: {u['reason']}\n"
                                               for u in data["unscheduled"])
     return text
+
+
+# How people read what ended the schedule search.
+_STOPPED_BY_WORDS = {"iterations": "its iteration limit", "patience": "no improvement for a while",
+                     "time": "its time limit (another run may differ)",
+                     "empty": "nothing to improve"}
+
+
+def _search_line(search: dict) -> str:
+    return (f"Search: {search['iterations']} iterations with seed {search['seed']}, stopped by "
+            f"{_STOPPED_BY_WORDS.get(search['stopped_by'], search['stopped_by'])}.\n")

@@ -124,5 +124,6 @@ def drift(targets: Targets, when, tolerance_arcsec: float) -> ColumnTable:
                "crossing_sigma_days": _crossing_sigma_days(targets, crossing)}
     if targets.has_errors:
         columns.update(error_ellipse_at(targets, ctx.epoch_jyear))
-    meta = {"time": iso_z(ctx.time), "tolerance_arcsec": tolerance}
+    meta = {"time": iso_z(ctx.time), "tolerance_arcsec": tolerance,
+            "targets_distance_unknown": int(np.count_nonzero(targets.distance_unknown))}
     return ColumnTable(columns, meta, DRIFT_UNITS)

@@ -192,6 +192,7 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
                                   "check again before pointing at any later time")
     meta.update(targets_allowed=int(np.count_nonzero(reasons == "")),
                 targets_refused=int(np.count_nonzero(reasons != "")),
+                targets_distance_unknown=int(np.count_nonzero(exported.distance_unknown)),
                 tolerance_arcsec=tolerance)
     meta.update(_validity_meta(frame, instant, seconds, fastest, rate, tolerance,
                                exported=len(rows) > 0))

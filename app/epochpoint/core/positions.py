@@ -97,6 +97,8 @@ class PositionChunks:
         if targets.has_errors:
             self.names += list(ELLIPSE_COLUMNS)
         self.meta = _context_meta(ctx)
+        # Targets without a known distance get no annual parallax (ledger_parallax NaN).
+        self.meta["targets_distance_unknown"] = int(np.count_nonzero(targets.distance_unknown))
         self.units = {k: v for k, v in COLUMN_UNITS.items() if k in self.names}
 
     def spans(self) -> list:
@@ -153,7 +155,9 @@ def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False
     for rows, part in zip(chunks.spans(), chunks):
         for c in chunks.names[1:]:
             out[c][rows] = part[c]
-    return Positions(out, chunks.context)
+    result = Positions(out, chunks.context)
+    result.meta.update(chunks.meta)
+    return result
 
 
 def _store_radec(out: dict, rows: slice, prefix: str, p: np.ndarray):
@@ -213,6 +217,8 @@ def _fill_chunk(targets: Targets, ctx: AstrometryContext, out: dict, rows: slice
         }
         for column, (before, after) in stages.items():
             out[column][rows] = separation(before, after) * RAD_TO_ARCSEC
+        # Distance unknown: no parallax was applied, and its true size is unknown.
+        out["ledger_parallax"][rows][prop.parallax == 0.0] = np.nan
         if observed is not None:
             out["ledger_diurnal_aberration"][rows] = observed.diurnal_aberration * RAD_TO_ARCSEC
             out["ledger_refraction"][rows] = observed.refraction * RAD_TO_ARCSEC

@@ -6,6 +6,12 @@ term and perspective acceleration, as given in The Hipparcos and Tycho Catalogue
 sec. 4.1.7; Butkevich & Lindegren 2014, A&A 570, A62). Light-time effects along the path
 cancel to first order in v/c and are neglected (below 1 uas a century for real stars).
 
+A parallax of zero or less means the distance is unknown: the star is propagated as if very
+far (parallax 0), so neither annual parallax nor perspective acceleration applies and the radial
+velocity only rides along; ERFA pmsafe treats such parallaxes alike. So is a star whose
+parallax, proper motion and radial velocity add up to a space velocity of half the speed of
+light or more (ERFA starpv's VMAX): no propagated star moves faster than light.
+
 Epochs are Julian years (TDB). Units: mas, mas/yr, km/s. One call handles any number of stars.
 """
 from __future__ import annotations
@@ -14,8 +20,22 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .constants import AU_KM_PER_S_YEAR, DEG_TO_RAD, MAS_TO_RAD
+from .constants import AU_KM_PER_S_YEAR, C_M_PER_S, DEG_TO_RAD, MAS_TO_RAD
 from .vectors import dot, tangent_triad, to_spherical, triad_of
+
+
+# The largest space velocity taken as physical: half the speed of light, as ERFA starpv's VMAX.
+VMAX_KM_S = 0.5 * C_M_PER_S / 1000.0
+
+
+def known_parallax(parallax, pm_ra_cosdec, pm_dec, radial_velocity) -> np.ndarray:
+    """The parallax (mas) where it gives a physical distance, else 0 (distance unknown): zero
+    or negative parallax, or a space velocity of VMAX_KM_S or more at that distance."""
+    parallax = np.asarray(parallax, dtype=float)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        transverse_km_s = np.hypot(pm_ra_cosdec, pm_dec) / parallax * AU_KM_PER_S_YEAR
+        physical = (parallax > 0.0) & (np.hypot(transverse_km_s, radial_velocity) < VMAX_KM_S)
+    return np.where(physical, parallax, 0.0)
 
 
 @dataclass(frozen=True)
@@ -43,8 +63,10 @@ class Propagated:
 def propagate(ra_deg, dec_deg, parallax, pm_ra_cosdec, pm_dec, radial_velocity, dt_years):
     """Propagate astrometric parameters over dt_years (Hipparcos Vol. 1, sec. 1.5.5).
 
-    Per star about 40 array operations; no per-instant cost.
+    Per star about 40 array operations; no per-instant cost. A parallax without a physical
+    distance behind it is taken as 0 (see `known_parallax`).
     """
+    parallax = known_parallax(parallax, pm_ra_cosdec, pm_dec, radial_velocity)
     r0, p0, q0 = tangent_triad(np.asarray(ra_deg) * DEG_TO_RAD, np.asarray(dec_deg) * DEG_TO_RAD)
     t = np.asarray(dt_years, dtype=float)
 

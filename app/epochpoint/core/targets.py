@@ -14,6 +14,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .spacemotion import known_parallax
+
 # The five astrometric parameters plus radial velocity, in the order used for covariances.
 ASTROMETRIC_PARAMETERS = ("ra", "dec", "parallax", "pm_ra_cosdec", "pm_dec", "radial_velocity")
 ERROR_COLUMNS = tuple(f"{p}_error" for p in ASTROMETRIC_PARAMETERS)
@@ -146,6 +148,14 @@ class Targets:
             errors={k: pick(v) for k, v in self.errors.items()},
             extra={k: pick(v) for k, v in self.extra.items()},
         )
+
+    @property
+    def distance_unknown(self) -> np.ndarray:
+        """True where no physical distance is known: parallax 0, or a space velocity of half
+        the speed of light or more (spacemotion.known_parallax); no annual parallax applies."""
+        known = known_parallax(self.parallax, self.pm_ra_cosdec, self.pm_dec,
+                               self.radial_velocity)
+        return known == 0.0
 
     @property
     def has_errors(self) -> bool:

@@ -2,11 +2,11 @@
 
 Altitude (or airmass) limits and the mount's hour-angle limits are solved in closed form
 (horizon_geometry.py) from each target's apparent place at mid-darkness and the sidereal
-rate; the German-mount meridian limit splits a window where the mount must flip. Only the
-constraints that need it are sampled (every `sample_step` seconds) and their edges refined
-by bisection to about a second: the horizon mask (altitude against azimuth), the Moon
-separation (while the Moon is above the horizon; optionally scaled with its illumination)
-and Sun avoidance. Times are seconds from the night's reference instant.
+rate; the German-mount meridian limit splits a window where the mount must flip. The
+horizon mask's crossings are found to 0.1 s, however narrow its features
+(horizon_crossings.py). The Moon separation (while the Moon is above the horizon; optionally
+scaled with its illumination) and Sun avoidance are sampled every `sample_step` seconds and
+their edges refined by bisection to about a second. Times are seconds from the night's reference instant.
 """
 from __future__ import annotations
 
@@ -16,6 +16,7 @@ import numpy as np
 
 from . import intervals as iv
 from .constants import RAD_TO_DEG
+from .horizon_crossings import mask_clear_intervals
 from .horizon_geometry import (SIDEREAL_DEG_PER_S, altaz_from_ha, altitude_for_airmass,
                                ha_at_altitude, observed_altitude, true_altitude_for_observed)
 from .positions import positions
@@ -299,7 +300,9 @@ class _SampledChecks:
                 idx = idx[self._dips_below_mask(idx, windows)]
             if idx.size == 0:
                 continue
-            allowed = self._allowed(which, idx)
+            allowed = (mask_clear_intervals(self.geo, self.mask, idx, self.span,
+                                            self.c.sample_step)
+                       if which == "mask" else self._allowed(which, idx))
             for i, intervals in zip(idx, allowed):
                 windows[i] = [part for piece in windows[i] for part in iv.intersect([piece], intervals)]
                 if not windows[i]:

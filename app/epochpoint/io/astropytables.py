@@ -11,7 +11,7 @@ from __future__ import annotations
 import io
 import warnings
 
-from astropy.io.votable import from_table
+from astropy.io.votable import from_table, parse
 from astropy.io.votable.tree import Info
 from astropy.table import Table
 
@@ -22,16 +22,35 @@ FORMAT_NAMES = {"ecsv": "ECSV", "votable": "VOTable"}
 
 
 def load_table(path: str, data: bytes, fmt: str) -> Table:
-    """An astropy Table from ECSV ('ecsv') or VOTable ('votable') bytes (first table)."""
-    source = decode_utf8(path, data).splitlines() if fmt == "ecsv" else io.BytesIO(data)
+    """An astropy Table from ECSV ('ecsv') or VOTable ('votable') bytes (first table).
+
+    ECSV header meta lands in table.meta; so do a VOTable's INFO elements (of the document, the
+    first resource and the table) and its table's PARAMs, by name, where meta has no such key.
+    """
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # astropy's VOTable conformance notes
-            return Table.read(source, format="ascii.ecsv" if fmt == "ecsv" else "votable")
+            if fmt == "ecsv":
+                return Table.read(decode_utf8(path, data).splitlines(), format="ascii.ecsv")
+            return _votable_table(io.BytesIO(data))
     except Exception as err:  # astropy raises many types for malformed files
         first_line = (str(err).strip().splitlines() or [type(err).__name__])[0][:100]
         raise InputError(path, f"is not a readable {FORMAT_NAMES[fmt]} file ({first_line})") \
             from None
+
+
+def _votable_table(source) -> Table:
+    """The first table of a VOTable (as Table.read gives it), with INFO and PARAM in meta."""
+    document = parse(source)
+    first = document.get_first_table()
+    table = first.to_table()
+    resource = document.resources[0] if document.resources else None
+    named = list(document.infos) + (list(resource.infos) if resource is not None else [])
+    named += list(first.infos) + list(first.params)
+    for element in named:
+        if element.name and element.name not in table.meta:
+            table.meta[element.name] = element.value
+    return table
 
 
 def table_bytes(table: Table, fmt: str) -> bytes:

@@ -4,7 +4,8 @@ Reading is unit-aware: ra/dec in any angle unit (deg, hourangle, rad, ...), prop
 mas/yr, parallax to mas, radial velocity to km/s, errors likewise; a column without a unit is in
 our default unit (targetcolumns.DEFAULT_UNITS). Epoch numbers are Julian years whatever their
 unit says; text columns are read like CSV cells (so sexagesimal ra/dec work, units ignored).
-Masked cells mean "not given": zero motion, default epoch, unknown error. Rows are numbered
+Masked cells mean "not given": zero motion, unknown error; an epoch the meta key or INFO/PARAM
+`catalogue_epoch` states, or none (refused on a moving row; see targetchecks.py). Rows are numbered
 1, 2, ... in data order. Planning columns keep their type (numbers stay numbers; masked numbers
 become NaN, masked text becomes '').
 
@@ -22,6 +23,7 @@ from .astropytables import load_table, table_bytes
 from .errors import InputError, quote
 from .targetcolumns import (ASTROMETRY_COLUMNS, DEFAULT_UNITS, UNCERTAINTY_COLUMNS,
                             match_columns)
+from .targetchecks import CATALOGUE_EPOCH_KEY
 from .targetrows import RawColumn, RawTable
 
 
@@ -111,7 +113,18 @@ def read_table_targets(path: str, data: bytes, fmt: str) -> RawTable:
 
     return RawTable(path=path, row_numbers=np.arange(1, len(table) + 1), row_word="row",
                     columns={c: _raw_column(path, c, column(i, c)) for c, i in known.items()},
-                    extra={labels[i]: _extra_values(column(i)) for i in extra})
+                    extra={labels[i]: _extra_values(column(i)) for i in extra},
+                    catalogue_epoch=_stated_epoch(table.meta))
+
+
+def _stated_epoch(meta) -> tuple[str, None] | None:
+    """The file's `catalogue_epoch` (ECSV header meta, VOTable INFO or PARAM), if stated."""
+    for key, value in meta.items():
+        if str(key).strip().lower() == CATALOGUE_EPOCH_KEY:
+            if isinstance(value, bytes):
+                value = value.decode("utf-8", "replace")
+            return str(np.ravel(value)[0] if np.ndim(value) else value), None
+    return None
 
 
 def _unit(canonical: str):

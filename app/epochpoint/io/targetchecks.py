@@ -6,11 +6,13 @@
    rows: `# catalogue_epoch: 2016.0` among the comment lines before a CSV header, the meta key
    `catalogue_epoch` in an ECSV header, or an INFO or PARAM named `catalogue_epoch` in a
    VOTable. A row without proper motion keeps J2000.0: its place is the same at every epoch.
-2. Parallax of zero or less. Gaia publishes such parallaxes for distant or faint sources (a
-   measurement with its noise, Gaia DR3 documentation sec. 4.1, from memory). The row is kept
-   with its distance unknown: parallax 0, so no annual parallax and no perspective
-   acceleration (as ERFA pmsafe treats a zero or negative parallax: a very distant star). One
-   warning per file counts such rows.
+2. Parallax of zero or less. Gaia publishes negative parallaxes for distant or faint sources
+   (a measurement with its noise; from memory). The row is kept with its distance unknown:
+   parallax 0, so no annual parallax and no perspective acceleration, and a radial velocity
+   has no effect (as ERFA pmsafe treats a zero or negative parallax: a very distant star). One
+   warning per file counts the rows where that changes what the file says: a negative
+   parallax, or a zero one beside a radial velocity. (A plain 0, or no parallax, is the usual
+   way to say "distance unknown" and needs no word.)
 3. Motions beyond any known star's: a radial velocity above 3,000 km/s (the fastest known
    stars, hypervelocity stars, move at about 1,700-1,800 km/s; from memory) or a proper motion
    above 20"/yr (the largest known, Barnard's star, is 10.4"/yr; from memory). Usually a unit
@@ -41,8 +43,7 @@ def stated_epoch(raw) -> float | None:
     try:
         return parse_epoch(text)
     except ValueError as err:
-        raise InputError(raw.path, f"{CATALOGUE_EPOCH_KEY}: {err}", line=line,
-                         row_word=raw.row_word if line is None else "line") from None
+        raise InputError(raw.path, f"{CATALOGUE_EPOCH_KEY}: {err}", line=line) from None
 
 
 def fill_epochs(raw, values: dict, note) -> None:
@@ -78,19 +79,21 @@ def _where(raw, names, i: int) -> str:
 def warn_about_rows(raw, values: dict, names, keep: np.ndarray) -> None:
     """One warning for parallaxes of zero or less (set to 0 in values: distance unknown) and
     one naming rows whose motion is beyond any known star's, among the kept rows."""
+    n = len(raw)
+    rv = np.nan_to_num(values.get("radial_velocity", np.zeros(n)))
     parallax = values.get("parallax")
     column = raw.columns.get("parallax")
     if parallax is not None and column is not None:
-        given_nonpositive = keep & ~column.missing & (parallax <= 0.0)
-        count = int(np.count_nonzero(given_nonpositive))
+        given = keep & ~column.missing
+        changed = given & ((parallax < 0.0) | ((parallax == 0.0) & (rv != 0.0)))
+        count = int(np.count_nonzero(changed))
         if count:
-            first = _where(raw, names, int(np.flatnonzero(given_nonpositive)[0]))
+            first = _where(raw, names, int(np.flatnonzero(changed)[0]))
             warnings.warn(f"{raw.path}: {count} target(s) with a parallax of zero or less "
                           f"(first: {first}) taken as at unknown distance: no annual parallax, "
-                          "no perspective acceleration", TargetValueWarning, stacklevel=5)
-            parallax[given_nonpositive] = 0.0
-    n = len(raw)
-    rv = np.nan_to_num(values.get("radial_velocity", np.zeros(n)))
+                          "no perspective acceleration, radial velocity without effect",
+                          TargetValueWarning, stacklevel=5)
+        parallax[given & (parallax < 0.0)] = 0.0
     pm = np.hypot(np.nan_to_num(values.get("pm_ra_cosdec", np.zeros(n))),
                   np.nan_to_num(values.get("pm_dec", np.zeros(n))))
     fast = keep & ((np.abs(rv) > RADIAL_VELOCITY_LIMIT_KM_S) | (pm > PROPER_MOTION_LIMIT_MAS_YR))
