@@ -141,11 +141,12 @@ def test_a_slew_that_times_out_is_aborted_and_says_the_mount_may_be_moving(stuck
 def test_cli_slew_failure_after_motion_sends_abort_and_exits_5(stuck, tmp_path, capsys):
     site, targets = overhead_at_night()
     listing = tmp_path / "one.csv"
-    listing.write_text(f"name,ra,dec,epoch\nAntisun,{float(targets.ra[0])!r},{float(targets.dec[0])!r},2016.0\n")
+    ra, dec = float(targets.ra[0]), float(targets.dec[0])
+    listing.write_text(f"name,ra,dec,epoch\nAntisun,{ra!r},{dec!r},2016.0\n")
     # TARGETS NAME, positional like every other command.
     code = run_cli(["mount", "slew", str(listing), "Antisun",
-                 f"--site={float(site.latitude)!r},{float(site.longitude)!r},0", "--indi", stuck.address,
-                 "--wait", "--timeout", "1"])
+                    f"--site={float(site.latitude)!r},{float(site.longitude)!r},0",
+                    "--indi", stuck.address, "--wait", "--timeout", "1"])
     err = capsys.readouterr().err.strip().splitlines()
     assert code == 5, err
     assert len(err) == 1 and "may still be moving" in err[0] and "abort sent" in err[0]

@@ -2,7 +2,8 @@
 
 Exit status: 0 done; 2 bad input; 3 refused by the site's interlocks (nothing sent);
 4 the INDI server could not be reached or went away (never retried); 5 the mount failed,
-refused, did not end in time or ended beyond the tolerance; 130 interrupted (abort sent).
+refused, did not end in time or ended beyond the largest accepted residual; 130 interrupted
+(abort sent).
 """
 from __future__ import annotations
 

@@ -8,6 +8,7 @@ import numpy as np
 
 from ..core.plan import (DARKNESS_LEVELS, SCHEDULE_ITERATIONS, SCHEDULE_SECONDS,
                          SCHEDULE_SEED, plan)
+from ..core.schedule import MAX_ITERATIONS
 from . import checks, common
 from .people import PeopleColumn, people_table
 
@@ -44,8 +45,8 @@ def add_parser(sub) -> None:
                         f"(default {SCHEDULE_SECONDS:g}); it normally stops earlier, after "
                         f"--schedule-iterations")
     p.add_argument("--schedule-iterations", type=checks.count(0), default=SCHEDULE_ITERATIONS,
-                   metavar="N", help=f"improvement rounds of the scheduler "
-                                     f"(default {SCHEDULE_ITERATIONS})")
+                   metavar="N", help=f"improvement rounds of the scheduler (default "
+                                     f"{MAX_ITERATIONS}, fewer for long lists)")
     p.add_argument("--seed", type=checks.count(0), default=SCHEDULE_SEED, metavar="N",
                    help=f"seed of the scheduler's random choices: the same seed gives the same "
                         f"order (default {SCHEDULE_SEED})")

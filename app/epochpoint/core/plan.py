@@ -14,7 +14,7 @@ import numpy as np
 from astropy.time import Time
 
 from .night import NightBoundaries, moon_events, night_boundaries
-from .schedule import MAX_ITERATIONS, Schedule, schedule
+from .schedule import Schedule, schedule
 from .schedule_model import priority_weight
 from .ranges import checked
 from .schedule_slew import Mount
@@ -30,7 +30,7 @@ DEFAULT_REPEATS = 1
 DARKNESS_LEVELS = ("civil", "nautical", "astronomical")
 # The schedule search is bounded by iterations and seeded, so a plan is reproducible; its
 # wall time is only an upper limit (the search reports which limit stopped it).
-SCHEDULE_ITERATIONS = MAX_ITERATIONS
+SCHEDULE_ITERATIONS = None  # schedule.default_iterations: 300, fewer for long lists
 SCHEDULE_SEED = 0
 SCHEDULE_SECONDS = 30.0
 
@@ -175,7 +175,7 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          min_altitude: float | None = None, max_airmass: float | None = None,
          moon_separation: float = 0.0, moon_scale: bool = False,
          max_seconds: float = SCHEDULE_SECONDS, seed: int = SCHEDULE_SEED,
-         max_iterations: int = SCHEDULE_ITERATIONS,
+         max_iterations: int | None = SCHEDULE_ITERATIONS,
          mount_position: tuple[float, float] | None = None) -> Plan:
     """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
 
@@ -189,7 +189,8 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
         raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "
                          f"got {darkness!r}")
     checked(max_seconds, "max_seconds", 0.0, unit="s")
-    checked(max_iterations, "max_iterations", 0.0)
+    if max_iterations is not None:
+        checked(max_iterations, "max_iterations", 0.0)
     if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
         raise ValueError(f"seed must be a whole number >= 0, got {seed!r}")
     constraints = Constraints(darkness=darkness, min_altitude=min_altitude,
@@ -215,7 +216,8 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
                   park_ha_deg=park_ha, park_dec_deg=park_dec)
     order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.blocks,
                      length_s, ra_deg=windows.ra, dec_deg=windows.dec, mount=mount,
-                     max_seconds=max_seconds, seed=int(seed), max_iterations=int(max_iterations))
+                     max_seconds=max_seconds, seed=int(seed),
+                     max_iterations=None if max_iterations is None else int(max_iterations))
     order = centre_on_transit(order, windows.blocks, windows.transit)
     return Plan(site=site, night=boundaries, moon=moon_events(site, boundaries),
                 constraints=constraints, sky=sky, windows=windows, schedule=order,

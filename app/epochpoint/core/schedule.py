@@ -36,11 +36,17 @@ from .schedule_slew import Mount, slew_table_s
 
 __all__ = ["schedule", "schedule_all", "candidate_pool", "greedy_schedule", "priority_weight", "Mount", "slew_table_s",
            "Schedule", "Entry", "Unscheduled", "ScheduleInputError", "NO_WINDOW",
-           "NO_WINDOW_LONG_ENOUGH", "DISPLACED", "MAX_ITERATIONS", "STOP_REASONS"]
+           "NO_WINDOW_LONG_ENOUGH", "DISPLACED", "MAX_ITERATIONS", "STOP_REASONS",
+           "default_iterations"]
 
-# Ruin-and-recreate iterations by default: about 0.1 s on the demo night, and never fewer
-# blocks or less weight than the former 0.3 s budget on the demo and on 250 invented targets.
+# Ruin-and-recreate iterations by default: MAX_ITERATIONS on small nights (about 0.1 s on the
+# demo), fewer on long lists so that iterations x items stays near ITEM_ITERATIONS (an
+# iteration costs about items x order length), never below MIN_ITERATIONS. Measured: as many
+# blocks and as much weight as the former 0.3 s budget on the demo and on 250 invented
+# targets, and more on 10,000 (README, "Speed").
 MAX_ITERATIONS = 300
+MIN_ITERATIONS = 20
+ITEM_ITERATIONS = 15_000
 # What may end the search, as reported in Schedule.stopped_by.
 STOP_REASONS = ("iterations", "patience", "time", "empty")
 
@@ -62,6 +68,11 @@ def _problem(weight, duration_s, windows_s, night_end_s, slew_s, ra_deg, dec_deg
                                 mount)
         slew_s = slew_table_s(ra_deg, dec_deg, mount)
     return night_problem(weight, duration_s, windows_s, night_end_s, slew_s)
+
+
+def default_iterations(items: int) -> int:
+    """The default iteration limit for a night of `items` targets (or pier-side items)."""
+    return int(min(MAX_ITERATIONS, max(MIN_ITERATIONS, ITEM_ITERATIONS // max(items, 1))))
 
 
 def greedy_schedule(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_deg=None,
@@ -104,7 +115,7 @@ def candidate_pool(weight, duration_s, windows_s) -> np.ndarray | None:
 
 def schedule(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_deg=None,
              dec_deg=None, mount=None, max_seconds=30.0, seed=0,
-             max_iterations=MAX_ITERATIONS, patience=None) -> Schedule:
+             max_iterations=None, patience=None) -> Schedule:
     """The best order found within the limits (see `schedule_all`).
 
     With positions and a mount, long lists are first cut to `candidate_pool` (a night holds
@@ -143,14 +154,14 @@ def _alone_reason(windows, duration: float) -> str:
 
 def schedule_all(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_deg=None,
                  dec_deg=None, mount=None, max_seconds=30.0, seed=0,
-                 max_iterations=MAX_ITERATIONS, patience=None) -> Schedule:
+                 max_iterations=None, patience=None) -> Schedule:
     """The best order found within the limits.
 
     Starts from the better of the greedy baseline and two insertion passes (score weight /
     shift and weight**2 / shift), then ruins and recreates with a generator seeded by `seed`
-    until `max_iterations` iterations, `patience` iterations without improvement (default
-    200 + 10 per schedulable target) or, as an upper limit only, `max_seconds` of wall time
-    for the whole call (None: no limit). Every block starts as early as its order allows.
+    until `max_iterations` iterations (None: `default_iterations`), `patience` iterations
+    without improvement (default 200 + 10 per schedulable target) or, as an upper limit only,
+    `max_seconds` of wall time for the whole call (None: no limit). Every block starts as early as its order allows.
     Cost: one insertion pass is about (targets x order length x windows) numpy work per block
     placed; 500 targets take about a second (benchmarks/bench_schedule.py).
     """
@@ -170,6 +181,7 @@ def schedule_all(weight, duration_s, windows_s, night_end_s, slew_s=None, *, ra_
         patience = 200 + 10 * pool.size
     best, iterations, stopped_by = improve(
         problem, best, pool, deadline, seed,
-        max_iterations if max_iterations is not None else 10**9, patience)
+        max_iterations if max_iterations is not None else default_iterations(problem.n),
+        patience)
     return make_schedule(problem, best.route, best.starts, iterations,
                          time.perf_counter() - started, seed, stopped_by)

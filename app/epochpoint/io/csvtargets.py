@@ -16,9 +16,11 @@ from __future__ import annotations
 import csv
 import io
 import re
+from functools import partial
 
 import numpy as np
 
+from .csvcolumns import CsvLines
 from .errors import InputError
 from .filebytes import decode_utf8
 from .targetchecks import CATALOGUE_EPOCH_KEY
@@ -75,15 +77,15 @@ def _rows(path: str, text: str):
 
 
 def read_csv_targets(path: str, data: bytes) -> RawTable:
-    """The rows of a CSV target file, ready for build_targets."""
-    text = decode_utf8(path, data)
-    records = _rows(path, text)
-    first = next(records, None)
-    if first is None:
-        raise InputError(path, "is empty (no header row)")
-    header_line, labels = first
-    rows = list(records)
-    labels = _drop_unnamed_columns(path, header_line, labels, rows)
+    """The rows of a CSV target file, ready for build_targets: read a column at a time
+    (csvcolumns.py) when that reader is sure of the file, else row by row."""
+    lines = CsvLines.scan(data)
+    raw = None if lines is None else _read_by_columns(path, lines)
+    return raw if raw is not None else _read_by_rows(path, data)
+
+
+def _known_columns(path: str, header_line: int, labels: list, has_rows: bool):
+    """match_columns for the header, with the header's errors; ra and dec are required."""
     try:
         known, extra = match_columns(labels)
     except ValueError as err:
@@ -92,8 +94,57 @@ def read_csv_targets(path: str, data: bytes) -> RawTable:
         if needed not in known:
             raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})",
                              line=header_line)
-    if not rows:
+    if not has_rows:
         raise InputError(path, "has a header but no targets")
+    return known, extra
+
+
+def _read_by_columns(path: str, lines: CsvLines) -> RawTable | None:
+    """The RawTable of a file CsvLines is sure of, None where the row reader must decide."""
+    labels, n = lines.labels, len(lines.row_numbers)
+    named = [j for j, label in enumerate(labels) if label]
+    if len(named) < len(labels):  # trailing-comma columns: allowed only when empty
+        cells = lines.read([], [j for j in range(len(labels)) if not labels[j]])
+        if cells is None or any((column != "").any() for column in cells[1].values()):
+            return None
+    known, extra = _known_columns(path, lines.header_line, [labels[j] for j in named], n > 0)
+    known = {name: named[k] for name, k in known.items()}
+    extra = [named[k] for k in extra]
+    numeric = [j for name, j in known.items() if name in ASTROMETRY_COLUMNS + UNCERTAINTY_COLUMNS]
+    read = lines.read(numeric, [j for j in known.values() if j not in numeric] + extra)
+    if read is None:
+        return None
+    numbers, texts = read
+    as_text = [j for j, column in numbers.items() if column is None]
+    if as_text:  # a cell float() refuses: that column is read as text, as the row reader does
+        read = lines.read([], as_text)
+        if read is None:
+            return None
+        texts.update(read[1])
+    columns = {}
+    for canonical, j in known.items():
+        if j in texts:
+            columns[canonical] = RawColumn(labels[j], texts[j], texts[j] == "")
+        else:
+            values, missing = numbers[j]
+            columns[canonical] = RawColumn(labels[j], values, missing,
+                                           cell_text=partial(lines.cell_text, j))
+    return RawTable(path=path, row_numbers=lines.row_numbers, row_word="line", columns=columns,
+                    extra={labels[j]: texts[j] for j in extra},
+                    catalogue_epoch=_stated_epoch(path, lines.head_text))
+
+
+def _read_by_rows(path: str, data: bytes) -> RawTable:
+    """The row reader: the csv module over every data line."""
+    text = decode_utf8(path, data)
+    records = _rows(path, text)
+    first = next(records, None)
+    if first is None:
+        raise InputError(path, "is empty (no header row)")
+    header_line, labels = first
+    rows = list(records)
+    labels = _drop_unnamed_columns(path, header_line, labels, rows)
+    known, extra = _known_columns(path, header_line, labels, bool(rows))
 
     width = len(labels)
     row_problems = {}

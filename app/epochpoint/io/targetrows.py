@@ -34,6 +34,8 @@ class RawColumn:
     label: str  # the column's name as written in the file
     values: np.ndarray
     missing: np.ndarray
+    # For numbers read from text (csvcolumns.py): row index -> the cell's text, for messages.
+    cell_text: Callable[[int], str] | None = None
 
 
 @dataclass
@@ -103,7 +105,8 @@ def parse_column(column: RawColumn, rule: ColumnRule) -> tuple[np.ndarray, dict]
     present = ~column.missing
     if column.values.dtype.kind in "biuf":
         values[present] = column.values[present].astype(float)
-        shown = lambda i: quote(repr(float(values[i])))  # noqa: E731
+        shown = lambda i: quote(repr(float(values[i])) if column.cell_text is None  # noqa: E731
+                                else column.cell_text(i))
     else:
         texts = column.values
         rows = np.flatnonzero(present)
