@@ -8,7 +8,8 @@ import sys
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).parent))
-BENCHMARKS = ("bench_positions", "bench_windows", "bench_plan", "bench_schedule")
+BENCHMARKS = ("bench_positions", "bench_windows", "bench_plan", "bench_schedule",
+              "bench_output")
 
 if __name__ == "__main__":
     for name in BENCHMARKS:

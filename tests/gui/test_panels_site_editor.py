@@ -38,7 +38,7 @@ def _type(qtbot, field, text):
 def test_form_shows_the_site(editor, site):
     assert float(editor.fields["latitude"].text()) == site.latitude
     assert editor.fields["timezone"].currentText() == site.timezone
-    assert editor.fields["mount_type"].currentText() == site.interlocks.mount.mount_type
+    assert editor.fields["mount_type"].currentData() == site.interlocks.mount.mount_type
     assert editor.horizon.table.rowCount() == len(site.interlocks.horizon.azimuth)
 
 

@@ -39,8 +39,8 @@ def _plan_copy(tmp_path, name="night.json"):
     return path
 
 
-def test_unreadable_plan_with_a_recovery_file_offers_the_recovery(make_window, tmp_path,
-                                                                   dialogs):
+def test_unreadable_plan_with_a_recovery_file_offers_the_recovery(dialogs, make_window,
+                                                                   tmp_path):
     window = make_window(interactive=True)
     path = _plan_copy(tmp_path)
     recovery = recovery_path(window.autosaver.folder, path)
@@ -53,11 +53,11 @@ def test_unreadable_plan_with_a_recovery_file_offers_the_recovery(make_window, t
     assert dialogs["question"], "the recovery was not offered"
     assert window.document.row_count() == len(read_plan_file(DEMO_PLAN).targets)
     assert window.document.path == path and window.document.dirty  # restored, not yet saved
-    # The user is told why the file itself was not used.
-    assert any(path in text for _, text in dialogs["warning"])
+    # The question says why the file itself was not used.
+    assert any(path in text and "not valid JSON" in text for _, text in dialogs["question"])
 
 
-def test_recovery_file_that_fails_to_load_is_kept_for_salvage(make_window, tmp_path, dialogs):
+def test_recovery_file_that_fails_to_load_is_kept_for_salvage(dialogs, make_window, tmp_path):
     window = make_window(interactive=True)
     path = _plan_copy(tmp_path)
     recovery = recovery_path(window.autosaver.folder, path)
@@ -78,8 +78,8 @@ def test_recovery_file_that_fails_to_load_is_kept_for_salvage(make_window, tmp_p
     assert any(salvage in text for _, text in dialogs["warning"])  # the user is told where
 
 
-def test_failing_autosave_is_shown_in_the_status_line_and_once_in_a_dialog(make_window,
-                                                                          tmp_path, dialogs):
+def test_failing_autosave_is_shown_in_the_status_line_and_once_in_a_dialog(dialogs, make_window,
+                                                                          tmp_path):
     window = make_window(DEMO_PLAN, interactive=True)
     blocked = tmp_path / "not-a-folder"
     blocked.write_text("a file where the recovery folder should be")
@@ -96,7 +96,7 @@ def test_failing_autosave_is_shown_in_the_status_line_and_once_in_a_dialog(make_
 
 
 def test_autosave_failure_from_a_full_disk_is_shown_and_cleared_when_it_works(
-        make_window, tmp_path, dialogs, monkeypatch):
+        dialogs, make_window, tmp_path, monkeypatch):
     import epochpoint.gui.recovery as recovery_module
 
     window = make_window(DEMO_PLAN, interactive=True)
@@ -105,10 +105,10 @@ def test_autosave_failure_from_a_full_disk_is_shown_and_cleared_when_it_works(
     def full_disk(path, _doc):
         raise OSError(28, "No space left on device", path)
 
-    monkeypatch.setattr(recovery_module, "write_plan_file", full_disk)
-    assert window.autosaver.save_now() is None
-    assert "No space left on device" in window.autosave_note.text()
-    monkeypatch.undo()
+    with monkeypatch.context() as patch:
+        patch.setattr(recovery_module, "write_plan_file", full_disk)
+        assert window.autosaver.save_now() is None
+        assert "No space left on device" in window.autosave_note.text()
     assert window.autosaver.save_now() is not None
     assert window.autosave_note.isHidden()
 

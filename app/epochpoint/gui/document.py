@@ -201,7 +201,7 @@ class Document(QObject):
     def change_tolerance(self, arcsec: float) -> None:
         arcsec = float(arcsec)
         if not (np.isfinite(arcsec) and arcsec > 0.0):
-            raise ValueError("the drift tolerance must be a positive number of arcseconds")
+            raise ValueError("the drift tolerance must be a positive number of ″")
         if arcsec != self.tolerance:
             self.undo_stack.push(commands.ChangeTolerance(self, self.tolerance, arcsec))
 

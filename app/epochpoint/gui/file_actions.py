@@ -1,6 +1,7 @@
 """File handling of the main window: new, open, import, save, save as, export positions,
-recent files, and the question before unsaved changes are dropped. Mixed into MainWindow,
-whose document, settings, autosaver and message helpers it uses."""
+recent files, the question before unsaved changes are dropped, and what the user is told when
+an autosave fails. Mixed into MainWindow, whose document, settings, autosaver, status line and
+message helpers it uses."""
 from __future__ import annotations
 
 import os
@@ -13,8 +14,9 @@ from epochpoint.io.errors import InputError
 from epochpoint.io.planfile import write_plan_file
 
 from .document import empty_plan
-from .loading import PLAN_FILE_FILTER, TARGET_FILE_FILTER, load_path
-from .recovery import add_recent_file, newer_recovery, recent_files, remove_recent_file
+from .loading import PLAN_FILE_FILTER, TARGET_FILE_FILTER, is_plan_file, load_path
+from .recovery import (add_recent_file, newer_recovery, recent_files, recovery_path,
+                       remove_recent_file, salvage_recovery)
 
 
 class FileActions:
@@ -41,6 +43,9 @@ class FileActions:
         try:
             doc, kept_path = load_path(path, site_spec, night)
         except (InputError, ValueError, OSError) as err:
+            if offer_recovery and self._open_recovery_of_unreadable(path, err, site_spec,
+                                                                    night):
+                return True
             self.show_error("Cannot open", one_line(err))
             return False
         restored = False
@@ -49,16 +54,44 @@ class FileActions:
                 "Restore unsaved changes?",
                 f"Unsaved changes to {os.path.basename(path)} were kept from an earlier "
                 "session. Restore them?"):
-            try:
-                doc, restored = load_path(recovery)[0], True
-            except (InputError, ValueError, OSError) as err:
-                self.show_error("Cannot restore", one_line(err))
+            restored_doc = self._load_recovery(recovery, site_spec, night)
+            if restored_doc is not None:
+                doc, restored = restored_doc, True
         self.document.load(doc, kept_path, dirty=restored or kept_path is None)
         if kept_path:
             self._remember(kept_path)
         self.show_message(f"Opened {path}" + (" (with restored changes)" if restored else ""))
         self.recompute_timer.start()
         return True
+
+    def _open_recovery_of_unreadable(self, path: str, err, site_spec, night) -> bool:
+        """The plan file cannot be read: offer its recovery file, if there is one."""
+        recovery = recovery_path(self.autosaver.folder, path)
+        if not (is_plan_file(path) and os.path.exists(recovery) and self.interactive):
+            return False
+        if not self.ask("Open the recovered plan?",
+                        f"{one_line(err)}\n\nChanges to {os.path.basename(path)} were kept "
+                        "from an earlier session. Open them instead? The damaged file stays "
+                        "as it is until you save."):
+            return False
+        doc = self._load_recovery(recovery, site_spec, night)
+        if doc is None:
+            return False
+        self.document.load(doc, path, dirty=True)
+        self._remember(path)
+        self.show_message(f"Opened the recovered changes of {path} (not yet saved)")
+        self.recompute_timer.start()
+        return True
+
+    def _load_recovery(self, recovery: str, site_spec=None, night=None):
+        """The document in a recovery file, or None (the file is then kept for salvage)."""
+        try:
+            return load_path(recovery, site_spec, night)[0]
+        except (InputError, ValueError, OSError) as err:
+            kept = salvage_recovery(recovery)
+            self.show_error("Cannot restore", f"{one_line(err)}. The recovery file is kept "
+                                              f"for salvage as {kept}")
+            return None
 
     def offer_untitled_recovery(self) -> bool:
         """At start without a file: offer the unsaved untitled plan of an earlier session."""
@@ -67,10 +100,8 @@ class FileActions:
                 "Restore unsaved plan?", "An unsaved plan was kept from an earlier session. "
                                          "Restore it?")):
             return False
-        try:
-            doc, _ = load_path(recovery)
-        except (InputError, ValueError, OSError) as err:
-            self.show_error("Cannot restore", one_line(err))
+        doc = self._load_recovery(recovery)
+        if doc is None:
             return False
         self.document.load(doc, None, dirty=True)
         return True
@@ -135,6 +166,27 @@ class FileActions:
         self.export_dialog.exported.connect(
             lambda s: self.show_message(f"Exported {s.exported} target(s) to {s.path}"))
         self.export_dialog.open()
+
+    def _on_autosave_failed(self, err) -> None:
+        """Say so in the status line every time, and in a dialog once until one works."""
+        text = f"Autosave failed: {one_line(err)}"
+        self.autosave_note.setText(f"⚠ {text}")
+        self.autosave_note.setToolTip(f"{text}. Unsaved changes are not kept for recovery; "
+                                      "save the plan (Ctrl+S) to keep them.")
+        self.autosave_note.show()
+        self.show_message(text, 15000)
+        if not self._autosave_warned:
+            self._autosave_warned = True
+            if self.interactive:
+                QMessageBox.warning(self, "Autosave failed",
+                                    f"{text}\n\nUnsaved changes are not kept for recovery "
+                                    "until this is fixed: save the plan (Ctrl+S) to keep "
+                                    "them. This is said once; the status line keeps showing "
+                                    "it.")
+
+    def _on_autosave_saved(self, _path: str) -> None:
+        self._autosave_warned = False
+        self.autosave_note.hide()
 
     def maybe_save(self) -> bool:
         """True when it is fine to drop the document (saved, discarded or clean)."""

@@ -7,13 +7,17 @@ docked below; the status bar with messages, a progress bar and Cancel while a ta
 the clocks. Every action has a keyboard shortcut.
 
 Recompute: any change of targets, site or night settings restarts a RECOMPUTE_DELAY_MS timer;
-when it fires, the night's plan and the state "now" run in workers (a newer request cancels
-the older one). The state now is also refreshed every NOW_REFRESH_MS and whenever the
-selected target changes (for its correction ledger).
+when it fires, the night's plan and the state at the shown instant run in workers (a newer
+request cancels the older one). The shown instant is one for the whole window (gui.instant):
+the present on the night that holds it, else the middle of the chosen night, or where the user
+clicked the night chart or the timeline; a new night date or site starts over from that rule.
+The state is also refreshed every NOW_REFRESH_MS and whenever the selected target changes (for
+its correction ledger).
 """
 from __future__ import annotations
 
 import os
+from dataclasses import replace
 
 from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QCursor, QKeySequence, QShortcut
@@ -29,11 +33,12 @@ from . import themes, workers
 from .caution import CautionStrip
 from .document import Document
 from .file_actions import FileActions
+from .instant import InstantBar, instant_label
 from .menus import build_menus
 from .night_bar import NightBar
 from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
 from .panels.mount_panel import MountPanel
-from .recompute import night_plan, now_state
+from .recompute import night_plan, now_state, tonight_date
 from .recovery import Autosaver
 from .status import StatusClocks
 from .target_model import COLUMNS, Computed, TargetFilterProxy, TargetTableModel
@@ -56,6 +61,8 @@ class MainWindow(FileActions, QMainWindow):
         self.selected: int | None = None
         self._plan_task = self._now_task = None
         self._plan_generation = -1
+        self.instant_choice = "auto"  # "auto", "now" or a chosen ISO instant (module docstring)
+        self._instant_key = None      # the night date and site the choice was made for
         self._targets_for_drift = None
 
         self._build_central()
@@ -64,6 +71,9 @@ class MainWindow(FileActions, QMainWindow):
         self._build_status_bar()
         self._connect_document()
         self.autosaver = Autosaver(self.document, recovery_folder, parent=self)
+        self._autosave_warned = False
+        self.autosaver.failed.connect(self._on_autosave_failed)
+        self.autosaver.saved.connect(self._on_autosave_saved)
 
         self.recompute_timer = QTimer(self)
         self.recompute_timer.setSingleShot(True)
@@ -95,6 +105,8 @@ class MainWindow(FileActions, QMainWindow):
         note_layout.addWidget(self.site_note_label, 1)
         note_layout.addWidget(set_site)
         self.night_bar = NightBar()
+        self.instant_bar = InstantBar()
+        self.instant_bar.back_to_now.connect(self.show_present)
 
         # Left: the filter box and the target table.
         self.model = TargetTableModel(self.document, self)
@@ -161,6 +173,7 @@ class MainWindow(FileActions, QMainWindow):
             self.tabs.addTab(widget, title)
         for panel in (self.tonight, self.skydome, self.drift):
             panel.target_clicked.connect(self.select_target)
+        self.tonight.instant_clicked.connect(self.set_shown_instant)
         self.site_editor.site_edited.connect(self.document.replace_site)
         self.drift.tolerance_changed.connect(self._on_tolerance_edited)
 
@@ -179,6 +192,7 @@ class MainWindow(FileActions, QMainWindow):
         layout.addWidget(self.caution)
         layout.addWidget(self.site_note)
         layout.addWidget(self.night_bar)
+        layout.addWidget(self.instant_bar)
         layout.addWidget(self.splitter, 1)
         self.setCentralWidget(central)
         self.night_bar.night_edited.connect(self._on_night_edited)
@@ -215,7 +229,12 @@ class MainWindow(FileActions, QMainWindow):
         self.cancel_button.setToolTip("Stop the running computation")
         self.cancel_button.clicked.connect(workers.tracker().cancel_all)
         self.clocks = StatusClocks()
-        for widget in (self.progress_label, self.progress, self.cancel_button):
+        self.autosave_note = QLabel()  # stays while autosaves fail (file_actions)
+        self.autosave_note.setObjectName("autosaveNote")
+        self.autosave_note.setProperty("role", "status")
+        self.autosave_note.setProperty("stale", "true")  # the warning style
+        for widget in (self.autosave_note, self.progress_label, self.progress,
+                       self.cancel_button):
             status.addPermanentWidget(widget)
             widget.hide()
         status.addPermanentWidget(self.clocks)
@@ -358,19 +377,42 @@ class MainWindow(FileActions, QMainWindow):
         self.refresh_now()
 
     def refresh_now(self) -> None:
-        """Positions now for every target, and the selected target's correction ledger."""
+        """Positions at the shown instant for every target, and the selected target's
+        correction ledger."""
         doc = self.document
         if self._now_task is not None:
             self._now_task.cancel()
+        key = (doc.night.date, doc.site.latitude, doc.site.longitude)
+        if key != self._instant_key:  # another night or place: start over from the rule
+            self._instant_key, self.instant_choice = key, "auto"
         if doc.row_count() == 0:
             self.model.set_computed(None)
             return
         generation = doc.generation
         self._now_task = workers.run_in_worker(
-            self, now_state, doc.targets(), doc.site, "now", self.selected,
+            self, now_state, doc.targets(), doc.site, self.instant_choice, self.selected,
+            doc.night.date,
             on_done=lambda state: self._on_now(generation, state),
-            on_error=lambda message: self._on_failed("Positions now", message),
-            progress_label="Positions now…")
+            on_error=lambda message: self._on_failed("Positions at the shown instant",
+                                                     message),
+            progress_label="Positions at the shown instant…")
+
+    def set_shown_instant(self, iso: str) -> None:
+        """Show the window at a chosen instant (a click on the night chart or timeline)."""
+        self.instant_choice = iso
+        self.refresh_now()
+
+    def show_present(self) -> None:
+        """Back to the present: tonight's night (if another is shown) at the present instant."""
+        tonight = tonight_date(self.document.site)
+        if tonight != self.document.night.date:
+            self._on_night_edited(replace(self.document.night, date=tonight), "date")
+            self.show_message(f"Showing tonight ({tonight}) at the present instant; Undo "
+                              "(Ctrl+Z) returns to the night shown before.")
+        self._instant_key = (self.document.night.date, self.document.site.latitude,
+                             self.document.site.longitude)
+        self.instant_choice = "now"
+        self.refresh_now()
 
     def _on_plan(self, generation: int, plan) -> None:
         if generation != self.document.generation:
@@ -391,9 +433,17 @@ class MainWindow(FileActions, QMainWindow):
         if generation != self.document.generation:
             return
         self.now = state
+        zone = self.document.site.timezone
+        label = instant_label(state.time, zone)
+        self.model.set_instant_label(label, state.time)
+        self.instant_bar.show_instant(state.time, state.kind, zone)
+        self.tonight.set_instant(state.time)
         self._show_computed()
         if state.selected == self.selected:
-            self.ledger.set_row(state.ledger_row)
+            row = state.ledger_row
+            if row is not None:
+                row = dict(row, instant_label=label, instant_kind=state.kind)
+            self.ledger.set_row(row)
         if state.earth_orientation_warning:
             self.clocks.table_age.setToolTip(state.earth_orientation_warning)
 

@@ -68,6 +68,9 @@ def build_menus(window) -> dict:
     menu = bar.addMenu("&View")
     a["night"] = _action(w, menu, "&Night-vision theme", "Ctrl+Shift+N", w.toggle_night_theme,
                          "Red on black, for dark-adapted eyes", checkable=True)
+    a["present"] = _action(w, menu, "Back to the &present instant", "Ctrl+Shift+P",
+                           w.show_present, "Show tonight at the present instant (the target "
+                           "list, verdicts and ledger follow it)")
     menu.addSeparator()
     a["list"] = _action(w, menu, "Target &list", "Ctrl+0", lambda: w.table.setFocus(),
                         "Move the focus to the target list")

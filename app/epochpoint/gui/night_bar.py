@@ -43,9 +43,10 @@ class NightBar(QFrame):
         self.max_airmass.setSingleStep(0.1)
         self.moon_sep = self._spin(0.0, 180.0, 0, "°", "none",
                                    "Smallest distance from the Moon while it is up")
-        self.moon_scaled = QCheckBox("&scaled by phase")
+        self.moon_scaled = QCheckBox("&scaled by illuminated fraction")
         self.moon_scaled.setToolTip("Multiply the Moon distance by the Moon's illuminated "
-                                    "fraction (a thin crescent barely matters)")
+                                    "fraction (0 at new Moon, 1 at full; a thin crescent "
+                                    "barely matters)")
         layout = QHBoxLayout(self)
         layout.setContentsMargins(8, 4, 8, 4)
         layout.setSpacing(6)

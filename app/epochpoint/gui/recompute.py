@@ -1,7 +1,13 @@
 """The computations the app runs in worker threads: each is a thin call into epochpoint.core.
 
     night_plan(targets, site, night)                  -> core.plan.Plan
-    now_state(targets, site, when="now", selected=None) -> NowState
+    now_state(targets, site, when="now", selected=None, night_date=None) -> NowState
+    tonight_date(site, when="now")                    -> 'YYYY-MM-DD'
+
+The window shows one instant (the "shown instant"): `when` is "now", an ISO 8601 instant, or
+"auto", which is the present while the night of `night_date` holds it and the middle of that
+night (halfway from sunset to sunrise, core.night) otherwise. The night of a date runs from
+the site's local mean solar noon to the next (core.night.night_window).
 
 The pointing interlocks are the ones every motion command uses (core.export.refusals with
 the Sun's separation from core.export.sun_separation_deg).
@@ -10,10 +16,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import datetime as dt
+
 import numpy as np
 
 from epochpoint.core.context import make_context
 from epochpoint.core.export import refusals, sun_separation_deg
+from epochpoint.core.night import night_boundaries, night_window
 from epochpoint.core.plan import plan
 from epochpoint.core.positions import positions
 from epochpoint.core.site import Site
@@ -32,6 +41,7 @@ class NowState:
     """Every target at one instant, and the correction ledger of the selected one."""
 
     time: str                   # ISO 8601 UTC with Z
+    kind: str                   # "now", "middle of the night" or "chosen"
     alt: np.ndarray             # observed altitude, degrees
     drift: np.ndarray           # arcsec from the catalogue position
     refused: np.ndarray         # '' when pointing is allowed, else the interlock's reason
@@ -41,9 +51,39 @@ class NowState:
     earth_orientation_warning: str | None
 
 
-def now_state(targets: Targets, site: Site, when="now", selected: int | None = None) -> NowState:
-    """Positions now (one context for all targets), the interlocks' verdicts and the ledger."""
+def tonight_date(site: Site, when="now") -> str:
+    """The date of the night (core.night.night_window) that holds the instant `when`."""
     t = parse_time(when)
+    day = t.to_datetime(timezone=dt.timezone.utc).date()
+    for date in (day - dt.timedelta(days=1), day, day + dt.timedelta(days=1)):
+        start, end = night_window(site, date)
+        if start <= t < end:
+            return date.isoformat()
+    return day.isoformat()  # not reached: consecutive windows tile the time line
+
+
+def shown_instant(site: Site, when="auto", night_date: str | None = None):
+    """(Time, kind) of the shown instant (see the module docstring)."""
+    if when == "now" or (when == "auto" and night_date is None):
+        return parse_time("now"), "now"
+    if when != "auto":
+        return parse_time(when), "chosen"
+    now = parse_time("now")
+    start, end = night_window(site, night_date)
+    if start <= now < end:
+        return now, "now"
+    night = night_boundaries(site, night_date)
+    sun = night.spans.get("sun")
+    if sun is None:  # the Sun never sets: its lowest point is the middle of the "night"
+        return night.sun_lowest_time, "middle of the night"
+    return sun[0] + (sun[1] - sun[0]) * 0.5, "middle of the night"
+
+
+def now_state(targets: Targets, site: Site, when="now", selected: int | None = None,
+              night_date: str | None = None) -> NowState:
+    """Positions at the shown instant (one context for all targets), the interlocks'
+    verdicts and the selected target's ledger."""
+    t, kind = shown_instant(site, when, night_date)
     ctx = make_context(t, site)
     pos = positions(targets, site, t, context=ctx)
     sun_sep = sun_separation_deg(site, t, pos["ra_apparent"], pos["dec_apparent"])
@@ -55,7 +95,7 @@ def now_state(targets: Targets, site: Site, when="now", selected: int | None = N
         ledger_row["time"] = iso_z(t)
         ledger_row["refused"] = str(refused[selected])
         ledger_row["sun_separation"] = float(sun_sep[selected])
-    return NowState(time=iso_z(t), alt=pos["alt"], drift=pos["drift"], refused=refused,
+    return NowState(time=iso_z(t), kind=kind, alt=pos["alt"], drift=pos["drift"], refused=refused,
                     sun_separation=sun_sep, ledger_row=ledger_row, selected=selected,
                     earth_orientation_warning=ctx.eop_warning)
 

@@ -4,7 +4,11 @@ Every AUTOSAVE_MS the dirty document is written (as a plan file, atomically) to 
 file in the user's data folder (QStandardPaths.AppDataLocation/recovery, or a folder given
 by the caller, as tests do). One recovery file per document path (its name carries a hash of
 the path; "untitled" for a new document). A clean save or a clean exit removes it. On opening
-a document, a recovery file newer than the document's own file is offered for restoring.
+a document, a recovery file newer than the document's own file is offered for restoring; when
+the document's own file cannot be read, its recovery file is offered whatever its age. A
+recovery file that cannot be read is renamed for salvage (`salvage_recovery`), never deleted.
+An autosave that fails emits `failed` (the window tells the user); the next one that works
+emits `saved`.
 
 Recent files live in QSettings under "files/recent" (the caller's QSettings, so tests can use
 a temporary one), newest first, at most RECENT_MAX.
@@ -12,10 +16,11 @@ a temporary one), newest first, at most RECENT_MAX.
 from __future__ import annotations
 
 import contextlib
+import datetime as dt
 import hashlib
 import os
 
-from PySide6.QtCore import QObject, QStandardPaths, QTimer
+from PySide6.QtCore import QObject, QStandardPaths, QTimer, Signal
 
 from epochpoint.io.errors import InputError
 from epochpoint.io.planfile import write_plan_file
@@ -53,8 +58,24 @@ def newer_recovery(folder: str, document_path: str | None) -> str | None:
     return candidate
 
 
+def salvage_recovery(path: str) -> str:
+    """Rename an unreadable recovery file out of the autosaver's way (it would be overwritten
+    or removed) and return where it now is; the original path if it cannot be renamed."""
+    stamp = dt.datetime.now(dt.timezone.utc).strftime("%Y%m%dT%H%M%SZ")
+    base = path[:-len(".recovery.json")] if path.endswith(".recovery.json") else path
+    target = f"{base}.unreadable-{stamp}.json"
+    try:
+        os.replace(path, target)
+    except OSError:
+        return path
+    return target
+
+
 class Autosaver(QObject):
     """Writes the document's recovery file while it is dirty; see the module docstring."""
+
+    failed = Signal(object)  # the exception of an autosave that did not work
+    saved = Signal(str)      # the recovery file of an autosave that worked
 
     def __init__(self, document, folder: str | None = None, interval_ms: int = AUTOSAVE_MS,
                  parent=None):
@@ -83,8 +104,11 @@ class Autosaver(QObject):
             write_plan_file(path, self.document.to_plan_document())
         except (OSError, InputError, ValueError) as err:
             self.last_error = f"autosave failed: {err}"
+            self.failed.emit(err)
             return None
+        self.last_error = ""
         self._written = path
+        self.saved.emit(path)
         return path
 
     def clear(self) -> None:

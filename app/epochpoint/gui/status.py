@@ -2,8 +2,8 @@
 apparent sidereal time and the age of the Earth-orientation table.
 
 The sidereal time is the core's (core.context.make_context: Greenwich apparent sidereal time,
-IAU 2006/2000A via ERFA gst06a, plus the site's east longitude); one context per second costs
-about 1.5 ms. The table age is counted from its last measured value; past
+IAU 2006/2000A via ERFA gst06a, plus the site's east longitude), printed as the command line
+prints it (io.angles.sidereal_time_text); one context per second costs about 1.5 ms. The table age is counted from its last measured value; past
 core.timescale.STALE_AFTER_DAYS it is shown in the warning style.
 """
 from __future__ import annotations
@@ -19,14 +19,10 @@ from epochpoint.charts.plan_clock import site_zone
 from epochpoint.core.context import make_context
 from epochpoint.core.site import Site
 from epochpoint.core.timescale import STALE_AFTER_DAYS, earth_orientation_status, parse_time
+from epochpoint.io.angles import sidereal_time_text
 
 TICK_MS = 1000
-
-
-def sidereal_text(last_rad: float) -> str:
-    """hh:mm:ss of a sidereal time in radians."""
-    seconds = int(round((last_rad % (2.0 * math.pi)) / (2.0 * math.pi) * 86400.0)) % 86400
-    return f"{seconds // 3600:02d}:{seconds // 60 % 60:02d}:{seconds % 60:02d}"
+HOURS_PER_RADIAN = 12.0 / math.pi
 
 
 class StatusClocks(QWidget):
@@ -65,7 +61,7 @@ class StatusClocks(QWidget):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")  # staleness is shown by the table-age label
             ctx = make_context(parse_time(now), self.site)
-        self.sidereal.setText(f"LST {sidereal_text(ctx.site.last_rad)}")
+        self.sidereal.setText(sidereal_time_text(ctx.site.last_rad * HOURS_PER_RADIAN))
         self._show_table_age()
 
     def _show_table_age(self) -> None:
@@ -76,7 +72,7 @@ class StatusClocks(QWidget):
         self.table_age.setToolTip(
             f"IERS table (astropy-iers-data): last measured value {status.last_measured[:10]}, "
             f"predictions to {status.predictions_end[:10]}."
-            + (f" Older than {STALE_AFTER_DAYS:.0f} days: pointing may be off by 0.1-1 arcsec;"
+            + (f" Older than {STALE_AFTER_DAYS:.0f} days: pointing may be off by 0.1-1″;"
                " update astropy-iers-data." if stale else ""))
         if stale != self.stale or self.table_age.property("stale") is None:
             self.stale = stale

@@ -10,10 +10,12 @@ as +dd:mm:ss and accepts degrees too. An edit is parsed and checked with the sam
 file (io.angles, io.epochs, io.planningfields, core Targets); a bad value is refused, the old
 value kept, and `edit_rejected` carries the reason for the status bar.
 
-After a recompute, read-only columns show the observed altitude now, whether pointing is
-allowed now (the site's interlocks, Sun first), whether the target is observable tonight (or
-why not) and its drift from the catalogue position. A refused target is marked three ways:
-an icon of a distinct shape, a short word, and the theme's warning colour.
+After a recompute, read-only columns show, at the window's shown instant (gui.instant; the
+headers and tooltips name it), the observed altitude, whether pointing is allowed (the site's
+interlocks, Sun first) and the drift (the offset of the true position from the catalogue
+position); and whether the target is observable on the chosen night (or why not). A refused
+target is marked three ways: an icon of a distinct shape, a short word, and the theme's
+warning colour.
 """
 from __future__ import annotations
 
@@ -46,21 +48,21 @@ class ColumnSpec:
 
 COLUMNS = (
     ColumnSpec("name", "Name", "Target name", 120, numeric=False),
-    ColumnSpec("ra", "RA", "Right ascension (ICRS, catalogue epoch), hh:mm:ss; type degrees "
-               "or hh:mm:ss", 92),
-    ColumnSpec("dec", "Dec", "Declination (ICRS, catalogue epoch), +dd:mm:ss; type degrees "
-               "or +dd:mm:ss", 88),
-    ColumnSpec("alt_now", "Alt now", "Observed altitude now, degrees (refraction included)",
-               64, computed=True),
-    ColumnSpec("pointing", "Pointing", "May the telescope point there now? (the site's "
-               "interlocks: Sun avoidance, altitude, horizon mask, mount limits)", 76,
-               computed=True, numeric=False),
-    ColumnSpec("tonight", "Tonight", "Observable tonight within the night settings, or why not",
-               150, computed=True, numeric=False),
-    ColumnSpec("drift", "Drift ″", "Distance from the catalogue position now, arcseconds", 70,
-               computed=True),
+    ColumnSpec("ra", "RA (catalogue)", "Right ascension as catalogued (ICRS, at the "
+               "catalogue epoch), h:m:s; type degrees or hh:mm:ss", 104),
+    ColumnSpec("dec", "Dec (catalogue)", "Declination as catalogued (ICRS, at the catalogue "
+               "epoch), °:′:″; type degrees or +dd:mm:ss", 104),
+    ColumnSpec("alt_now", "Alt", "Observed altitude at the shown instant, ° (refraction "
+               "included)", 112, computed=True),
+    ColumnSpec("pointing", "Pointing", "May the telescope point there at the shown instant? "
+               "(the site's interlocks: Sun avoidance, altitude, horizon mask, mount limits)",
+               76, computed=True, numeric=False),
+    ColumnSpec("tonight", "Night", "Observable on the chosen night within the night settings, "
+               "or why not", 150, computed=True, numeric=False),
+    ColumnSpec("drift", "Drift ″", "Drift: the offset of the true position at the shown "
+               "instant from the catalogue position, ″", 70, computed=True),
     ColumnSpec("priority", "Pri", "Priority, 1 (highest) to 5 (lowest)", 38),
-    ColumnSpec("exposure", "Exp s", "Exposure, seconds", 56),
+    ColumnSpec("exposure", "Exp s", "Exposure, s", 56),
     ColumnSpec("repeats", "Rep", "Exposures per block", 40),
     ColumnSpec("epoch", "Epoch", "Catalogue epoch (Julian year; type J2016.0 or B1950.0)", 64),
     ColumnSpec("pm_ra_cosdec", "pmRA*", "Proper motion in RA × cos Dec, mas/yr", 78),
@@ -201,6 +203,8 @@ class TargetTableModel(QAbstractTableModel):
         super().__init__(parent)
         self.document = document
         self.computed: Computed | None = None
+        self.instant_label = ""  # '01:40 -03': the shown instant of the computed columns
+        self.instant_iso = ""
         self._display: dict[str, list] = {}
         self._filter_text: list | None = None
         self.column_builds = 0  # how many whole-column display lists were built (tests)
@@ -231,10 +235,24 @@ class TargetTableModel(QAbstractTableModel):
             return None
         spec = COLUMNS[section]
         if role == Qt.ItemDataRole.DisplayRole:
+            if spec.key == "alt_now" and self.instant_label:
+                return f"Alt at {self.instant_label}"
             return spec.header
         if role == Qt.ItemDataRole.ToolTipRole:
-            return spec.tip + ("" if spec.computed else ". Press F2 or Enter to edit.")
+            if spec.computed:
+                return spec.tip + self._instant_note()
+            return spec.tip + ". Press F2 or Enter to edit."
         return None
+
+    def set_instant_label(self, label: str, iso: str) -> None:
+        """Name the shown instant of the computed columns ('01:40 -03' and its ISO text)."""
+        if (label, iso) != (self.instant_label, self.instant_iso):
+            self.instant_label, self.instant_iso = label, iso
+            self.headerDataChanged.emit(Qt.Orientation.Horizontal, 0, len(COLUMNS) - 1)
+
+    def _instant_note(self) -> str:
+        return f" (shown instant: {self.instant_label}, {self.instant_iso})" \
+            if self.instant_label else ""
 
     def flags(self, index):
         base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
@@ -373,14 +391,19 @@ class TargetTableModel(QAbstractTableModel):
 
     def _tooltip(self, key: str, row: int):
         reason = self.refusal(row)
+        at = f" at {self.instant_label}" if self.instant_label else ""
         if key in ("name", "pointing", "alt_now") and reason:
-            return f"Pointing refused now: {reason}"
+            return f"Pointing refused{at}: {reason}"
+        if key == "pointing" and self.computed is not None:
+            return f"Pointing allowed{at} by the site's interlocks"
         if key == "tonight" and self.computed is not None and self.computed.tonight is not None:
             why = self.computed.tonight[row]
-            return f"Not observable tonight: {why}" if why else "Observable tonight"
+            return f"Not observable on the chosen night: {why}" if why \
+                else "Observable on the chosen night"
         if key == "ra":
-            return f"{self.document.value(row, 'ra'):.6f} deg"
-        return COLUMNS[COLUMN_INDEX[key]].tip
+            return f"{self.document.value(row, 'ra'):.6f}°"
+        spec = COLUMNS[COLUMN_INDEX[key]]
+        return spec.tip + (self._instant_note() if spec.computed else "")
 
     # ------------------------------------------------------------------ caches
     def _display_list(self, key: str) -> list:

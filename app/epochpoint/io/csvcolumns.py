@@ -33,10 +33,10 @@ import pyarrow as pa
 import pyarrow.compute as pc
 import pyarrow.csv as pacsv
 
-# Bytes scanned per numpy pass (bounds the temporary boolean arrays).
-SCAN_BYTES = 1 << 25
-# Bytes of records pyarrow parses per block.
-BLOCK_BYTES = 1 << 24
+# Bytes scanned per numpy pass (small temporaries, reused rather than mapped anew).
+SCAN_BYTES = 1 << 20
+# Bytes of records pyarrow parses per block (a few blocks are in memory at once).
+BLOCK_BYTES = 1 << 22
 _UTF8_BOM = b"\xef\xbb\xbf"
 # Every character str.strip() removes, from Python itself.
 PYTHON_WHITESPACE = "".join(chr(c) for c in range(0x110000) if chr(c).isspace())
@@ -70,12 +70,18 @@ class CsvLines:
     """A CSV file's records located line by line (see module docstring), read on demand."""
 
     def __init__(self, data: bytes, starts, ends, header: int, records: np.ndarray):
-        self.data, self.starts, self.ends, self.records = data, starts, ends, records
+        self.data = data
         self.header_line = header + 1
-        self.labels = [c.strip() for c in next(csv.reader([self._line(header)]))]
+        header_text = data[starts[header]:ends[header]].decode("utf-8")
+        self.labels = [c.strip() for c in next(csv.reader([header_text]))]
         # Everything up to the header: where a file states its catalogue epoch.
         self.head_text = data[:ends[header]].decode("utf-8")
+        # Per record: its file line number and its bytes; runs of consecutive lines.
         self.row_numbers = records + 1
+        self.starts, self.ends = starts[records], ends[records]
+        breaks = np.flatnonzero(np.diff(records) != 1) + 1
+        self.runs = list(zip(np.concatenate(([0], breaks)).tolist(),
+                             np.concatenate((breaks - 1, [records.size - 1])).tolist()))
 
     @classmethod
     def scan(cls, data: bytes) -> CsvLines | None:
@@ -96,8 +102,9 @@ class CsvLines:
         header, records = int(content[0]), content[1:]
         if records.size and int((ends[records] - starts[records]).max()) >= csv.field_size_limit():
             return None
-        quoted = np.unique(np.searchsorted(starts, _positions(buf, ord('"'), int(ends[header])),
-                                           side="right") - 1)
+        first_quote = data.find(b'"', int(ends[header]))
+        quotes = _positions(buf, ord('"'), first_quote) if first_quote >= 0 else []
+        quoted = np.unique(np.searchsorted(starts, quotes, side="right") - 1)
         for line in quoted[np.isin(quoted, records)].tolist():
             if _PLAIN_QUOTED_LINE.fullmatch(data, int(starts[line]), int(ends[line])) is None:
                 return None
@@ -115,18 +122,15 @@ class CsvLines:
             keep[i] = bool(stripped) and not stripped.startswith("#")
         return np.flatnonzero(keep)
 
-    def _line(self, i: int) -> str:
-        return self.data[self.starts[i]:self.ends[i]].decode("utf-8")
-
     def cell_text(self, column: int, row: int) -> str:
         """The stripped text of one cell, as the row reader reads it (for messages)."""
-        return next(csv.reader([self._line(int(self.records[row]))]))[column].strip()
+        line = self.data[self.starts[row]:self.ends[row]].decode("utf-8")
+        return next(csv.reader([line]))[column].strip()
 
     def _batches(self, columns: list[int]):
         """pyarrow record batches of the given columns, every cell as text."""
-        runs = np.split(self.records, np.flatnonzero(np.diff(self.records) != 1) + 1)
         view = memoryview(self.data)
-        pieces = [view[self.starts[r[0]]:self.ends[r[-1]]] for r in runs if r.size]
+        pieces = [view[self.starts[first]:self.ends[last]] for first, last in self.runs]
         body = pieces[0] if len(pieces) == 1 else b"\n".join(pieces)
         names = [f"c{j}" for j in range(len(self.labels))]
         reader = pacsv.open_csv(
@@ -152,7 +156,7 @@ class CsvLines:
         parts = {j: [] for j in columns}
         rows = 0
         try:
-            for batch in self._batches(columns) if self.records.size else ():
+            for batch in self._batches(columns) if self.row_numbers.size else ():
                 rows += len(batch[0]) if batch else 0
                 for j, cells in zip(columns, batch):
                     if j in texts:
@@ -161,7 +165,9 @@ class CsvLines:
                         parts[j] = _append_numbers(parts[j], cells)
         except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
             return None
-        if rows != self.records.size and columns:
+        finally:
+            pa.default_memory_pool().release_unused()  # the blocks' memory, back to the system
+        if rows != self.row_numbers.size and columns:
             return None
         joined = {j: (None if parts[j] is None else _joined(parts[j], j in texts))
                   for j in columns}

@@ -5,7 +5,9 @@ Reading: UTF-8 (a byte-order mark is allowed), a header row of case-insensitive 
 line before the header may state the epoch of every row without one: `# catalogue_epoch: 2016.0`
 (targetchecks.py). Values are in
 our units (degrees, mas, mas/yr, km/s; ra/dec may be sexagesimal). Line numbers in messages are
-the file's own, header = line 1 (counting comment lines too).
+the file's own, header = line 1 (counting comment lines too). Files are read a column at a
+time (csvcolumns.py, for millions of rows) when that reader is sure to read them as the row
+reader here would; otherwise, and for every file it declines, row by row.
 
 Writing: one comment line stating frame and units, a header, then shortest round-trip float text
 (`repr`), so a file written and read again gives the same numbers bit for bit. Unknown errors and

@@ -21,7 +21,7 @@ with a trailing Z, dates YYYY-MM-DD::
         "min_altitude": null,               # degrees; null: the mount's minimum altitude
         "max_airmass": null,                # null: no airmass limit
         "moon_separation": 30.0,            # degrees from the Moon while it is up (0: none)
-        "moon_scaled": false                # scale that distance with the Moon's phase
+        "moon_scaled": false                # scale it by the Moon's illuminated fraction
       },
       "drift": {"tolerance_arcsec": 1.0},   # the drift view's tolerance
       "targets": [                          # one object per target, in list order
@@ -132,6 +132,10 @@ def read_plan_file(path) -> PlanDocument:
     except json.JSONDecodeError as err:
         raise InputError(path, f"is not valid JSON: {err.msg} (column {err.colno})",
                          line=err.lineno) from None
+    except RecursionError:
+        # The decoder recurses once per nested list or object; no plan nests more than five.
+        raise InputError(path, "is not a plan file: lists or objects nested too deeply "
+                               "to read") from None
     if not isinstance(data, dict):
         raise InputError(path, "is not a plan file (expected a JSON object)")
     if data.get("format") != FORMAT_NAME:

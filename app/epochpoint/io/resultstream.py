@@ -6,10 +6,10 @@ each chunk of rows (an ordered mapping name -> array, the same names every time)
 `close()`. The text equals, byte for byte, that of the whole table written at once
 (io.results documents the formats):
 
-- csv and json: each column of a chunk becomes a list of cell texts in one pass (floats by
-  Python's shortest round-trip repr, as `json` writes them), and the rows are joined from
-  those lists; only cells that are not plain numbers, booleans or plain text take the
-  per-cell path.
+- csv and json: each column of a chunk becomes its cell texts in one pass (floats spelled as
+  Python's shortest round-trip repr, as `json` writes them, by pyarrow: columntext.py), and
+  the rows are joined from those columns in pyarrow; only cells that are not plain numbers,
+  booleans or plain text take the per-cell path.
 - ecsv: the YAML header once (astropy's), then each chunk's data lines, formatted as for csv
   and spelled as astropy spells them (astropy writes a chunk whose text cells need quoting).
 - votable: its header declares each text column's widest value, known only at the end, so
@@ -24,14 +24,21 @@ import csv
 import io
 import json
 import os
+from concurrent.futures import ThreadPoolExecutor
 from json.encoder import encode_basestring_ascii
 
 import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
 
 from .atomic import atomic_output
+from .columntext import float_texts, joined_text, text_array
 from .errors import InputError
 
 STREAMED_FORMATS = ("csv", "json", "ecsv")
+# Threads formatting the columns of one chunk (pyarrow releases the GIL while it formats).
+FORMAT_THREADS = max(1, min(4, os.cpu_count() or 1))
+_format_pool: list = []
 # Characters that make the csv module quote a cell (delimiter, quote, line ends).
 _CSV_SPECIAL = (",", '"', "\n", "\r")
 
@@ -59,10 +66,23 @@ def _one_line(value) -> str:
 
 def _float_cells(values: np.ndarray, missing: str) -> list:
     """Shortest round-trip text of each float (Python's repr), `missing` where not finite."""
-    cells = list(map(float.__repr__, values.astype(float, copy=False).tolist()))
-    for i in np.flatnonzero(~np.isfinite(values)).tolist():
-        cells[i] = missing
-    return cells
+    return float_texts(values, missing).to_pylist()
+
+
+def _bool_texts(values: np.ndarray, true: str, false: str):
+    return pc.if_else(pa.array(values.astype(bool, copy=False)), true, false)
+
+
+def _int_texts(values: np.ndarray):
+    return pc.cast(pa.array(values), pa.string())
+
+
+def _columns_text(format_column, columns, names) -> list:
+    """format_column applied to each named column of a chunk, the columns side by side in
+    threads (the chunk is still written whole before the next one is taken)."""
+    if not _format_pool:
+        _format_pool.append(ThreadPoolExecutor(FORMAT_THREADS, thread_name_prefix="format"))
+    return list(_format_pool[0].map(format_column, [columns[name] for name in names]))
 
 
 def _is_plain_text(items: list) -> bool:
@@ -87,15 +107,15 @@ def _csv_quoted(text: str) -> str:
     return out.getvalue()[:-2]  # drop the empty second cell's comma and the line end
 
 
-def _csv_column(values) -> list:
-    """The CSV cell texts of one column chunk."""
+def _csv_column(values):
+    """The CSV cell texts of one column chunk (a pyarrow string array, or a list of str)."""
     values = np.asarray(values)
     if values.dtype.kind == "f":
-        return _float_cells(values, "")
+        return float_texts(values, "")
     if values.dtype.kind == "b":
-        return ["true" if v else "false" for v in values.tolist()]
+        return _bool_texts(values, "true", "false")
     if values.dtype.kind in "iu":
-        return list(map(str, values.tolist()))
+        return _int_texts(values)
     items = values.tolist()
     cells = items if values.dtype.kind == "U" or _is_plain_text(items) else \
         [_csv_cell(v) for v in items]
@@ -103,7 +123,7 @@ def _csv_column(values) -> list:
     joined = "\x00".join(cells)
     if any(c in joined for c in _CSV_SPECIAL):
         cells = [_csv_quoted(c) if any(s in c for s in _CSV_SPECIAL) else c for c in cells]
-    return cells
+    return text_array(cells)
 
 
 class CsvResultWriter:
@@ -118,12 +138,17 @@ class CsvResultWriter:
         out.write(header.getvalue())
 
     def write_chunk(self, columns) -> None:
-        cells = [_csv_column(columns[name]) for name in self.names]
-        if not cells or not cells[0]:
+        cells = _columns_text(_csv_column, columns, self.names)
+        if not cells or not len(cells[0]):
             return
         if len(cells) == 1:  # the csv module quotes a row's only cell when it is empty
-            cells = [['""' if c == "" else c for c in cells[0]]]
-        self.out.write("\n".join(map(",".join, zip(*cells))) + "\n")
+            only = cells[0]
+            cells = [['""' if c == "" else c for c in only] if isinstance(only, list)
+                     else pc.if_else(pc.equal(only, ""), '""', only)]
+        pieces = [cells[0]]
+        for column in cells[1:]:
+            pieces += [",", column]
+        self.out.write(joined_text(pieces + ["\n"], ""))
 
     def close(self) -> None:
         pass
@@ -131,19 +156,20 @@ class CsvResultWriter:
 
 # -- json -------------------------------------------------------------------------------------
 
-def _json_column(values) -> list:
-    """The JSON value texts of one column chunk (json.dumps' own spelling)."""
+def _json_column(values):
+    """The JSON value texts of one column chunk (json.dumps' own spelling), as a pyarrow
+    string array."""
     values = np.asarray(values)
     if values.dtype.kind == "f":
-        return _float_cells(values, "null")
+        return float_texts(values, "null")
     if values.dtype.kind == "b":
-        return ["true" if v else "false" for v in values.tolist()]
+        return _bool_texts(values, "true", "false")
     if values.dtype.kind in "iu":
-        return list(map(str, values.tolist()))
+        return _int_texts(values)
     items = values.tolist()
     if values.dtype.kind == "U" or _is_plain_text(items):
-        return list(map(encode_basestring_ascii, items))
-    return [json.dumps(python_value(v), allow_nan=False) for v in items]
+        return text_array(list(map(encode_basestring_ascii, items)))
+    return text_array([json.dumps(python_value(v), allow_nan=False) for v in items])
 
 
 class JsonResultWriter:
@@ -155,11 +181,13 @@ class JsonResultWriter:
         self.rows_written = False
 
     def write_chunk(self, columns) -> None:
-        cells = [[key + v for v in _json_column(columns[name])]
-                 for key, name in zip(self.keys, self.names)]
-        if not cells or not cells[0]:
+        cells = _columns_text(_json_column, columns, self.names)
+        if not cells or not len(cells[0]):
             return
-        rows = ",\n".join("{" + ", ".join(row) + "}" for row in zip(*cells))
+        pieces = []
+        for i, (key, column) in enumerate(zip(self.keys, cells)):
+            pieces += [("{" if i == 0 else ", ") + key, column]
+        rows = joined_text(pieces + ["}"], ",\n")
         self.out.write((",\n" if self.rows_written else "[\n") + rows)
         self.rows_written = True
 

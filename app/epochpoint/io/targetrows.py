@@ -146,6 +146,13 @@ def _mask(rows: dict, n: int) -> np.ndarray:
 
 def _text_cells(column: RawColumn) -> list[str]:
     """The cells of a column as stripped text ('' where missing)."""
+    if column.values.dtype == object:  # text cells, the usual case: one pass
+        cells = column.values.tolist()
+        if all(type(cell) is str for cell in cells):
+            out = [cell.strip() for cell in cells]
+            for i in np.flatnonzero(column.missing).tolist():
+                out[i] = ""
+            return out
     out = []
     for value, missing in zip(column.values, column.missing):
         out.append("" if missing else (repr(float(value)) if isinstance(value, (float, np.floating))
@@ -164,7 +171,10 @@ def _names(raw: RawTable) -> tuple[np.ndarray | None, list]:
     if column is None:
         return None, [None] * len(raw)
     given = _text_cells(column)
-    names = np.array([g or f for g, f in zip(given, _fallback_names(len(raw)))], dtype=object)
+    names = np.array(given, dtype=object)
+    unnamed = np.flatnonzero(names == "")
+    if unnamed.size:  # T1, T2, ... by data row where the cell is empty
+        names[unnamed] = _fallback_names(len(raw))[unnamed]
     return names, [g or None for g in given]
 
 
@@ -272,14 +282,18 @@ def _motion_given(raw: RawTable) -> np.ndarray:
 def _assemble(raw, names, values, frames, equinoxes, keep) -> Targets:
     """Targets from the good rows, with FK5/FK4 rows converted to ICRS."""
     n_kept = int(keep.sum())
+    all_kept = n_kept == len(keep)
+    if all_kept:  # no row left out: the columns as they are (no copy)
+        keep = slice(None)
     astrometry = {c: (values[c][keep] if c in values else
                       np.full(n_kept, RULES[c].if_missing, dtype=float))
                   for c in ASTROMETRY_COLUMNS}
-    astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry,
-                                 _motion_given(raw)[keep])
+    if "frame" in raw.columns:  # without a frame column every row is ICRS already
+        astrometry = convert_to_icrs(frames[keep], equinoxes[keep], astrometry,
+                                     _motion_given(raw)[keep])
     errors = {c: values[c][keep] for c in UNCERTAINTY_COLUMNS if c in values}
     extra = {label: np.asarray(column)[keep] for label, column in raw.extra.items()}
-    if names is None and not keep.all():
+    if names is None and not all_kept:
         names = _fallback_names(len(raw))
     try:
         return Targets.from_columns(name=None if names is None else names[keep], errors=errors,

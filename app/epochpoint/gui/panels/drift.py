@@ -64,7 +64,9 @@ class DriftPanel(QWidget):
         self.tolerance_box.setDecimals(3)
         self.tolerance_box.setValue(DEFAULT_TOLERANCE_ARCSEC)
         self.tolerance_box.setSuffix(" ″")
-        self.tolerance_box.setToolTip("Tolerance in arcseconds (a field of view, a slit width)")
+        self.tolerance_box.setToolTip("Drift tolerance, ″: the largest offset of the true "
+                                      "position from the catalogue position you accept (a "
+                                      "field of view, a slit width)")
         self.tolerance_box.valueChanged.connect(self._on_tolerance_typed)
         self._tolerance_timer = QTimer(self)
         self._tolerance_timer.setSingleShot(True)

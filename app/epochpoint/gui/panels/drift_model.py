@@ -17,13 +17,15 @@ OVER_MARK = "▲ over"
 COLUMNS = (
     ("flag", "", "▲ over: drift beyond the tolerance"),
     ("name", "Target", ""),
-    ("drift", "Drift (″)", "Angle between catalogue and propagated position"),
+    ("drift", "Drift (″)", "Offset of the true position at the date from the catalogue "
+                          "position"),
     ("drift_rate", "Rate (″/yr)", "How fast the drift grows"),
     ("crossing", "Crossing (±1σ)", "When the drift equals the tolerance (1σ uncertainty; "
                                    "? where the catalogue gives no proper-motion errors)"),
     ("epoch", "Epoch", "Catalogue epoch (Julian year)"),
-    ("catalogue", "Catalogue RA, Dec", "Catalogue position (ICRS) at the catalogue epoch"),
-    ("propagated", "RA, Dec at the date", "Propagated barycentric position (ICRS) at the date"),
+    ("catalogue", "RA, Dec (catalogue)", "Catalogue position (ICRS) at the catalogue epoch"),
+    ("propagated", "RA, Dec (ICRS) at the date", "True position at the date: propagated, "
+                                                 "barycentric, ICRS (not apparent)"),
 )
 KEYS = [c[0] for c in COLUMNS]
 

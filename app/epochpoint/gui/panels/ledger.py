@@ -4,7 +4,8 @@ One row per effect (its size in arcsec, as core.positions(..., ledger=True) repo
 a bar on a logarithmic scale, since the steps span seven orders of magnitude (a milliarcsecond
 of light deflection, a degree of precession since J2000 or of refraction at the horizon). Then
 the places the steps lead to, the pointing geometry and the instant, and, when the site's
-interlocks refuse the pointing, the reason in plain words.
+interlocks refuse the pointing, the reason in plain words. The title and the verdict name the
+instant (the window's shown instant, in the site's local time: row key "instant_label").
 """
 from __future__ import annotations
 
@@ -131,12 +132,13 @@ class LedgerPanel(QWidget):
         self.places = QGridLayout()
         self.place_values: dict = {}
         rows = (("propagated", "Propagated (ICRS, at the instant)", "RA", "Dec"),
-                ("apparent", "Apparent (true equator and equinox of date)", "RA", "Dec"),
+                ("apparent", "Apparent (true equator and equinox of date)", "RA of date",
+                 "Dec of date"),
                 ("cirs", "Intermediate (CIRS)", "RA", "Dec"),
                 ("observed", "Observed", "HA", "Dec"),
                 ("horizon", "Horizon (refracted)", "Alt", "Az"),
                 ("geometry", "Pointing", "Airmass", "Parallactic angle"),
-                ("instant", "Instant", "UTC", ""))
+                ("instant", "Instant", "UTC", "Local time at the site"))
         for r, (key, label, first, second) in enumerate(rows):
             name = QLabel(label)
             name.setProperty("role", "fieldLabel")
@@ -192,12 +194,13 @@ class LedgerPanel(QWidget):
                 for label in values:
                     label.setText("")
             return
-        self.title.setText(f"Correction ledger: {row.get('name', '')}")
+        at = str(row.get("instant_label") or row.get("time") or "this instant")
+        self.title.setText(f"Correction ledger: {row.get('name', '')} at {at}")
         refused = str(row.get("refused") or "")
         self.verdict.setVisible(True)
         self.verdict.setProperty("refused", bool(refused))
-        self.verdict.setText(f"✖ Refused for pointing: {refused}" if refused
-                             else "✓ Allowed by the site's interlocks at this instant.")
+        self.verdict.setText(f"✖ Refused for pointing at {at}: {refused}" if refused
+                             else f"✓ Allowed by the site's interlocks at {at}.")
         self._style_verdict()
         for r, (key, _, _) in enumerate(EFFECTS):
             self._set_effect(r, _number(row, key))
@@ -243,7 +246,9 @@ class LedgerPanel(QWidget):
                 label.setText(text)
 
         show("propagated", radec("propagated"))
-        show("apparent", radec("apparent"))
+        ra_app, dec_app = radec("apparent")
+        show("apparent", (ra_app.replace("RA ", "RA of date ", 1),
+                          dec_app.replace("Dec ", "Dec of date ", 1)))
         show("cirs", radec("cirs"))
         ha, dec_obs = _number(row, "ha"), _number(row, "dec_observed")
         show("observed", (f"HA {format_hours(ha, 2)}" if np.isfinite(ha) else "no site",
@@ -255,7 +260,10 @@ class LedgerPanel(QWidget):
         show("geometry", (f"airmass {airmass:.3f}" if np.isfinite(airmass)
                           else ("below the horizon" if np.isfinite(alt) else ""),
                           f"parallactic angle {pa:+.2f}°" if np.isfinite(pa) else ""))
-        show("instant", (str(row.get("time") or ""), ""))
+        kind = str(row.get("instant_kind") or "")
+        local = str(row.get("instant_label") or "")
+        show("instant", (f"UTC {row.get('time')}" if row.get("time") else "",
+                         f"{local}, {kind}" if local and kind else local))
 
     def _style_verdict(self) -> None:
         """Refusals in the theme's danger colour and bold (the words carry the meaning)."""

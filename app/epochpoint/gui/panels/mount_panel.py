@@ -26,7 +26,7 @@ from PySide6.QtWidgets import (QComboBox, QDialog, QDoubleSpinBox, QGridLayout,
                                QPushButton, QVBoxLayout, QWidget)
 
 from ...io.angles import format_dec_dms, format_ra_hms
-from ...mount import ConnectionLost, Telescope, pointing_for, slew_to_target
+from ...mount import CAUTION, ConnectionLost, Telescope, pointing_for, slew_to_target
 from ...mount.telescope import FRAME_TEXT
 from .mount_jobs import JOIN_TIMEOUT_S, MountJob, one_line, open_mount, switch_device
 from .mount_text import ConfirmMotionDialog, confirmation_text, report_text
@@ -50,6 +50,7 @@ class MountPanel(QWidget):
     """Telescope control for the selected target (see module docstring)."""
 
     status_message = Signal(str)  # a one-line note for the window's status bar
+    moving_changed = Signal(bool)  # a followed slew or sync started (True) or ended
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -70,6 +71,8 @@ class MountPanel(QWidget):
         self.destroyed.connect(lambda *_args, jobs=self._jobs: [j.drop() for j in jobs])
         self._confirm_serial: int | None = None  # a check a Slew/Sync press waits for
         self._closing = False
+        self._moving_shown = False
+        self._window_escape: QShortcut | None = None  # Esc anywhere in the window, in motion
         self._build()
         self.status_timer = QTimer(self)
         self.status_timer.setInterval(STATUS_POLL_MS)
@@ -166,8 +169,8 @@ class MountPanel(QWidget):
         self.tolerance_spin.setDecimals(1)
         self.tolerance_spin.setValue(2.0)
         self.tolerance_spin.setSuffix(" ″")
-        self.tolerance_spin.setToolTip("After the slew, one refining slew when the mount ends "
-                                       "further than this from the target")
+        self.tolerance_spin.setToolTip("Settle tolerance: after the slew, one refining slew "
+                                       "when the mount ends further than this from the target")
         self.timeout_spin = QDoubleSpinBox()
         self.timeout_spin.setRange(5.0, 1800.0)
         self.timeout_spin.setDecimals(0)
@@ -182,7 +185,7 @@ class MountPanel(QWidget):
         commands.addWidget(self.slew_button)
         commands.addWidget(self.sync_button)
         commands.addSpacing(12)
-        commands.addWidget(self._field_label("Tolerance"))
+        commands.addWidget(self._field_label("Settle tolerance"))
         commands.addWidget(self.tolerance_spin)
         commands.addWidget(self._field_label("Wait at most"))
         commands.addWidget(self.timeout_spin)
@@ -191,7 +194,7 @@ class MountPanel(QWidget):
         target_layout.addWidget(self.why_label)
 
         # ABORT: big, and enabled whenever a mount is connected.
-        self.abort_button = QPushButton("ABORT\nEsc · Ctrl+Shift+A")
+        self.abort_button = QPushButton("ABORT\nEsc anywhere while it moves · Ctrl+Shift+A")
         self.abort_button.setObjectName("abortButton")
         self.abort_button.setMinimumHeight(72)
         font = self.abort_button.font()
@@ -666,6 +669,7 @@ class MountPanel(QWidget):
         self.push_site_button.setEnabled(connected and not moving and not busy)
         self.abort_button.setEnabled(connected)
         self.abort_action.setEnabled(connected)
+        self._follow_motion(moving)
         if moving:
             why = "A motion is in progress: ABORT stops it."
         elif busy:
@@ -688,7 +692,27 @@ class MountPanel(QWidget):
         self._colour(self.why_label, "danger" if "refused" in why or "placeholder" in why
                      else None)
 
+    def _follow_motion(self, moving: bool) -> None:
+        """While a motion runs, Esc aborts it from anywhere in the window (a shortcut on the
+        top-level window); otherwise Esc belongs to the focused widget, and in this panel it
+        still sends ABORT."""
+        window = self.window()
+        if self._window_escape is None or self._window_escape.parent() is not window:
+            if self._window_escape is not None:
+                self._window_escape.setEnabled(False)
+                self._window_escape.deleteLater()
+            self._window_escape = QShortcut(QKeySequence(Qt.Key.Key_Escape), window)
+            self._window_escape.setContext(Qt.ShortcutContext.WindowShortcut)
+            self._window_escape.activated.connect(lambda: self.abort_motion())
+        self._window_escape.setEnabled(moving)
+        self.escape.setEnabled(not moving)  # one Esc shortcut at a time: never ambiguous
+        if moving != self._moving_shown:
+            self._moving_shown = moving
+            self.moving_changed.emit(moving)
+
     def _log(self, text: str) -> None:
+        if text == CAUTION:
+            return  # the confirmation showed it just before: said once, not twice
         stamp = datetime.now(timezone.utc).strftime("%H:%M:%SZ")
         self.log_view.appendPlainText(f"{stamp}  {text}")
 

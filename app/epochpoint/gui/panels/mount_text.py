@@ -1,5 +1,6 @@
-"""What the mount panel tells the observer: the confirmation before any motion (the exact
-coordinates to be sent and the safety caution) and the report after it."""
+"""What the mount panel tells the observer: the confirmation before a slew or a sync (the exact
+coordinates to be sent; before a slew, the safety caution, once) and the report after it. A
+sync moves nothing, and its confirmation never says the mount is about to move."""
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
@@ -8,7 +9,6 @@ from PySide6.QtWidgets import QDialog, QDialogButtonBox, QLabel, QVBoxLayout
 from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import CAUTION
 from ...mount.telescope import FRAME_TEXT, J2000_COORD
-from ..caution import CAUTION_TEXT
 
 
 def sent_place(pointing, coordinate_property: str | None) -> tuple[float, float, str]:
@@ -21,7 +21,8 @@ def sent_place(pointing, coordinate_property: str | None) -> tuple[float, float,
 
 def confirmation_text(pointing, sync: bool, device: str, coordinate_property: str | None,
                       sun_avoidance_deg: float) -> str:
-    """What the confirmation states: the exact numbers to be sent, the target now, the caution."""
+    """What the confirmation states: the exact numbers to be sent, the target now, and for a
+    slew the caution (mount.CAUTION, the one text the command line prints too)."""
     ra_deg, dec_deg, frame = sent_place(pointing, coordinate_property)
     what = (f"Sync {device} to {pointing.name}" if sync
             else f"Slew {device} to {pointing.name} and track it")
@@ -37,9 +38,11 @@ def confirmation_text(pointing, sync: bool, device: str, coordinate_property: st
         "",
     ]
     if sync:
-        lines.append("A sync moves nothing, but every later slew trusts it: be sure the "
-                     f"telescope is centred on {pointing.name}.")
-    lines += [CAUTION, CAUTION_TEXT]
+        lines.append("A sync moves nothing: it tells the mount that it points at these "
+                     "coordinates, and every later slew trusts that. Be sure the telescope is "
+                     f"centred on {pointing.name}.")
+    else:
+        lines.append(CAUTION)
     return "\n".join(lines)
 
 

@@ -23,6 +23,9 @@ from .horizon_editor import HorizonCellError, HorizonEditor
 from .theme_link import theme_chart_style, theme_colour, watch_theme
 
 SUN_AVOIDANCE_WARN_DEG = 30.0
+# How each of core.limits.MOUNT_TYPES is shown (the trade's names; common practice).
+MOUNT_TYPE_NAMES = {"german": "German equatorial", "equatorial": "fork equatorial",
+                    "altaz": "alt-az"}
 
 # key, label, tooltip; the key is the core's field name (Site, MountLimits or Interlocks).
 PLACE_FIELDS = (
@@ -45,8 +48,8 @@ MOUNT_FIELDS = (
     ("ha_west", "Hour angle west (h)", "How far west of the meridian it may point"),
     ("dec_min", "Declination min (°)", ""),
     ("dec_max", "Declination max (°)", ""),
-    ("meridian_limit", "Meridian limit (° of HA)", "German mounts: how far past the meridian "
-     "it may track before it must flip"),
+    ("meridian_limit", "Meridian limit (°)", "German equatorial mounts: how far past the "
+     "meridian, in ° of hour angle, it may track before it must flip"),
     ("slew_rate", "Slew rate (°/s)", "Per axis"),
     ("settle", "Settle time (s)", "After each slew"),
 )
@@ -179,7 +182,8 @@ class SiteEditor(QWidget):
 
     def _mount_type_row(self, grid: QGridLayout, row: int) -> int:
         combo = QComboBox()
-        combo.addItems(MOUNT_TYPES)
+        for key in MOUNT_TYPES:
+            combo.addItem(MOUNT_TYPE_NAMES.get(key, key), key)
         combo.activated.connect(lambda _: self.commit())
         self._add_row(grid, row, "mount_type", "Mount type", combo)
         return row + 1
@@ -206,7 +210,8 @@ class SiteEditor(QWidget):
                     "wavelength"):
             self.fields[key].setText(_text_of(getattr(site, key)))
         self.fields["timezone"].setCurrentText(site.timezone)
-        self.fields["mount_type"].setCurrentText(mount.mount_type)
+        combo = self.fields["mount_type"]
+        combo.setCurrentIndex(combo.findData(mount.mount_type))
         for key, _, _ in MOUNT_FIELDS:
             self.fields[key].setText(_text_of(getattr(mount, key)))
         self.fields["sun_avoidance"].setText(_text_of(locks.sun_avoidance))
@@ -254,7 +259,7 @@ class SiteEditor(QWidget):
             except FieldProblem as p:
                 problems[p.field] = p.message
         mount = self._try(problems, lambda: MountLimits(
-            mount_type=self.fields["mount_type"].currentText(),
+            mount_type=self.fields["mount_type"].currentData(),
             **{k: values[k] for k, _, _ in MOUNT_FIELDS}),
             needs=[k for k, _, _ in MOUNT_FIELDS])
         mask = False

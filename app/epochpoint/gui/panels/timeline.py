@@ -2,13 +2,14 @@
 
 A light painted widget under the night chart: the darkness levels as bands, each scheduled
 block as a box named for its target (in the colour of its line on the chart), hourly ticks
-in the site's local time and a marker for the present moment. Clicking a block selects it.
+in the site's local time and a marker for the window's shown instant. Clicking a block selects
+it; any click in the night moves the shown instant there (seconds_clicked).
 """
 from __future__ import annotations
 
 import datetime as dt
 
-from PySide6.QtCore import QRectF, Qt, QTimer, Signal
+from PySide6.QtCore import QRectF, Qt, Signal
 from PySide6.QtGui import QColor, QFont, QPainter, QPen
 from PySide6.QtWidgets import QToolTip, QWidget
 
@@ -18,18 +19,20 @@ from ...charts.plan_clock import local_datetime, seconds_of
 
 BAND_HEIGHT_PX = 46
 TICK_SPACE_PX = 18
-NOW_REFRESH_MS = 60_000
 
 
 class ScheduleTimeline(QWidget):
-    """Blocks of a plan's schedule against time; emits block_clicked(target index)."""
+    """Blocks of a plan's schedule against time; emits block_clicked(target index) and
+    seconds_clicked(seconds from the plan's reference instant)."""
 
     block_clicked = Signal(int)
+    seconds_clicked = Signal(float)
 
     def __init__(self, parent=None):
         super().__init__(parent)
         self.plan = None
         self.selected = None
+        self.instant: dt.datetime | None = None
         self.colours: dict = {}
         self.style = None
         self.margins_px = (50, 12)
@@ -38,9 +41,6 @@ class ScheduleTimeline(QWidget):
         self.setMaximumHeight(BAND_HEIGHT_PX + TICK_SPACE_PX + 30)
         self.setMouseTracking(True)
         self.setToolTip("")
-        self._clock = QTimer(self)
-        self._clock.timeout.connect(self.update)
-        self._clock.start(NOW_REFRESH_MS)
 
     # -- inputs -----------------------------------------------------------------------
     def set_plan(self, plan) -> None:
@@ -51,6 +51,11 @@ class ScheduleTimeline(QWidget):
 
     def set_selected(self, index) -> None:
         self.selected = None if index is None else int(index)
+        self.update()
+
+    def set_instant(self, instant: dt.datetime | None) -> None:
+        """The window's shown instant (aware UTC datetime), marked with a line."""
+        self.instant = instant
         self.update()
 
     def set_colours(self, colours: dict) -> None:
@@ -119,7 +124,7 @@ class ScheduleTimeline(QWidget):
                                     BAND_HEIGHT_PX), colour)
         self._paint_blocks(painter, look)
         self._paint_ticks(painter, text)
-        self._paint_now(painter, look)
+        self._paint_instant(painter, look)
 
     def _paint_blocks(self, painter: QPainter, look: dict) -> None:
         names = self.plan.windows.names
@@ -174,19 +179,22 @@ class ScheduleTimeline(QWidget):
         zone = local_datetime(self.plan, self.span[0]).tzname()
         painter.drawText(2, BAND_HEIGHT_PX + 4 + painter.fontMetrics().ascent(), f"{zone}")
 
-    def _paint_now(self, painter: QPainter, look: dict) -> None:
-        now = seconds_of(self.plan, dt.datetime.now(dt.timezone.utc))
-        if self.span[0] <= now <= self.span[1]:
-            x = self.x_of(now)
-            painter.setPen(QPen(QColor(look["accent"]), 2.0))
+    def _paint_instant(self, painter: QPainter, look: dict) -> None:
+        if self.instant is None:
+            return
+        shown = seconds_of(self.plan, self.instant)
+        if self.span[0] <= shown <= self.span[1]:
+            x = self.x_of(shown)
+            painter.setPen(QPen(QColor(look["accent"]), 2.0, Qt.PenStyle.DashLine))
             painter.drawLine(int(x), 0, int(x), BAND_HEIGHT_PX)
 
     # -- mouse --------------------------------------------------------------------------
     def mousePressEvent(self, event):  # noqa: N802
-        if event.button() == Qt.MouseButton.LeftButton:
+        if event.button() == Qt.MouseButton.LeftButton and self.plan is not None:
             hit = self.block_at(event.position().x(), event.position().y())
             if hit is not None:
                 self.block_clicked.emit(hit[0])
+            self.seconds_clicked.emit(self.seconds_at_x(event.position().x()))
         super().mousePressEvent(event)
 
     def mouseMoveEvent(self, event):  # noqa: N802
@@ -199,5 +207,5 @@ class ScheduleTimeline(QWidget):
         i, start, end = hit
         a, b = local_datetime(self.plan, start), local_datetime(self.plan, end)
         QToolTip.showText(event.globalPosition().toPoint(),
-                          f"{self.plan.windows.names[i]}: {a:%H:%M}–{b:%H:%M} local "
+                          f"{self.plan.windows.names[i]}: {a:%H:%M}–{b:%H:%M} {b.tzname()} "
                           f"({(end - start) / 60:.0f} min)", self)

@@ -3,9 +3,14 @@
 Pointing at the chart reads the nearest target line under the cursor: local time and UTC,
 the target's observed altitude and its airmass (Kasten & Young 1989, via core.observed).
 Clicking a line (or a scheduled block on it, or a block on the timeline) selects the target.
+Any click on the chart or the timeline also moves the window's shown instant there
+(instant_clicked); a vertical line marks the shown instant on both.
 """
 from __future__ import annotations
 
+import datetime as dt
+
+import matplotlib.dates as mdates
 import numpy as np
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QHBoxLayout, QLabel, QSpinBox, QVBoxLayout, QWidget
@@ -15,23 +20,28 @@ from ...charts.night_chart import draw_night_chart, seconds_at, time_span
 from ...charts.plan_clock import clock_text
 from ...core.constants import DEG_TO_RAD
 from ...core.observed import kasten_young_airmass
+from ..instant import utc_datetime
 from .chart_canvas import ChartCanvas, nearest_point
 from .theme_link import theme_chart_style, watch_theme
 from .timeline import ScheduleTimeline
 
 DEFAULT_LINES = 12
-HINT = "Point at a line to read it; click a line or a block to select its target."
+HINT = ("Point at a line to read it; click to show that instant everywhere, on a line or a "
+        "block to select its target too.")
 
 
 class TonightPanel(QWidget):
-    """Night chart + schedule timeline; emits target_clicked(index) on a click."""
+    """Night chart + schedule timeline; emits target_clicked(index) and instant_clicked(ISO
+    UTC instant) on a click."""
 
     target_clicked = Signal(int)
+    instant_clicked = Signal(str)
 
     def __init__(self, parent=None):
         super().__init__(parent)
         self.plan = None
         self.selected = None
+        self.instant: dt.datetime | None = None  # the window's shown instant (UTC)
         self.ax = None
         self.drawn = np.zeros(0, dtype=int)
 
@@ -63,6 +73,7 @@ class TonightPanel(QWidget):
         self.canvas.mpl_connect("button_press_event", self._on_press)
         self.canvas.mpl_connect("draw_event", lambda _: self._align_timeline())
         self.timeline.block_clicked.connect(self.target_clicked)
+        self.timeline.seconds_clicked.connect(self._emit_instant)
         watch_theme(self, lambda: self.set_chart_style(theme_chart_style()))
 
     # -- the contract -------------------------------------------------------------------
@@ -78,6 +89,15 @@ class TonightPanel(QWidget):
             return
         self.selected = index
         self.timeline.set_selected(index)
+        self._draw()
+
+    def set_instant(self, iso: str | None) -> None:
+        """Mark the window's shown instant (ISO 8601 UTC) on the chart and the timeline."""
+        instant = utc_datetime(iso) if iso else None
+        if instant == self.instant:
+            return
+        self.instant = instant
+        self.timeline.set_instant(instant)
         self._draw()
 
     def set_chart_style(self, style: dict | None) -> None:
@@ -98,6 +118,10 @@ class TonightPanel(QWidget):
             return
         self.ax, self.drawn = draw_night_chart(figure, self.plan, top_n=self.lines_box.value(),
                                                selected=self.selected, style=self.canvas.style)
+        if self.instant is not None:
+            look = resolve_style(self.canvas.style)
+            self.ax.axvline(mdates.date2num(self.instant), color=look["accent"], lw=1.4,
+                            ls="--", zorder=1.5, label="_shown instant")
         figure.set_layout_engine("tight")
         cycle = line_cycle(resolve_style(self.canvas.style))
         self.timeline.set_colours({int(i): cycle[k % len(cycle)][0]
@@ -157,8 +181,15 @@ class TonightPanel(QWidget):
         self.readout.setText(text)
 
     def _on_press(self, event) -> None:
-        if event.button != 1:
+        if event.button != 1 or self.plan is None:
             return
         hit = self.line_under(event)
         if hit is not None:
             self.target_clicked.emit(hit[0])
+        if self.ax is not None and event.inaxes is self.ax and event.xdata is not None:
+            self._emit_instant(seconds_at(self.plan, event.xdata))
+
+    def _emit_instant(self, seconds: float) -> None:
+        start, end = time_span(self.plan) if self.plan is not None else (0.0, -1.0)
+        if start <= seconds <= end:
+            self.instant_clicked.emit(self.plan.iso(seconds))
