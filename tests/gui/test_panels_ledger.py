@@ -85,7 +85,8 @@ def test_refusal_is_spelled_out(panel, rows):
     row = dict(rows[2], refused="within 35 deg of the Sun")
     panel.set_row(row)
     assert panel.verdict.isVisible()
-    assert "Refused for pointing: within 35 deg of the Sun" in panel.verdict.text()
+    assert "Refused for pointing at 2027-01-20T03:00:00Z: within 35 deg of the Sun" in \
+        panel.verdict.text()
 
 
 def test_no_row_clears_everything(panel, rows):

@@ -43,7 +43,7 @@ def test_bad_cell_value_is_rejected_in_the_window(make_window, qtbot):
     index = _table_index(window, 0, "dec")
     assert not window.proxy.setData(index, "123")
     assert window.document.value(0, "dec") == read_plan_file(DEMO_PLAN).targets.dec[0]
-    assert "Dec of Wick" in window.statusBar().currentMessage()
+    assert "Dec (catalogue) of Wick" in window.statusBar().currentMessage()
     assert not window.document.dirty
 
 

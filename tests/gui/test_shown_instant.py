@@ -144,3 +144,15 @@ def test_back_to_now_returns_to_the_present_night(make_window, qtbot):
     _wait_for_instant(qtbot, window, lambda t: abs(
         (t - dt.datetime.now(dt.timezone.utc)).total_seconds()) < 60)
     assert math.isfinite(window.model.computed.alt_now[0])
+
+
+def test_sky_dome_follows_the_shown_instant(make_window, qtbot):
+    window = make_window(DEMO_PLAN)
+    wait_for_plan(qtbot, window)
+    t_ref = window.plan.t_ref.to_datetime(timezone=dt.timezone.utc)
+    sunset = window.plan.night.spans["sun"][0].to_datetime(timezone=dt.timezone.utc)
+    wanted = sunset + dt.timedelta(minutes=50)  # far from the middle of the night
+    window.tonight.instant_clicked.emit(wanted.strftime("%Y-%m-%dT%H:%M:%SZ"))
+    _wait_for_instant(qtbot, window, lambda t: abs((t - wanted).total_seconds()) < 1)
+    sky = t_ref + dt.timedelta(seconds=window.skydome.t_seconds)
+    assert abs((sky - _utc(window.now.time)).total_seconds()) < 120  # one slider step

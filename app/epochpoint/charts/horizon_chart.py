@@ -37,7 +37,7 @@ def draw_horizon_profile(figure: Figure, mask, min_altitude_deg: float | None = 
     ax.set_xlim(0.0, 360.0)
     ax.set_ylim(-5.0, min(90.0, top))
     ax.set_xticks(range(0, 361, 45), ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "N"])
-    ax.set_ylabel("altitude (deg)", fontsize=8)
+    ax.set_ylabel("altitude (°)", fontsize=8)
     ax.tick_params(labelsize=7)
     ax.grid(True, color=look["rings"], lw=0.5)
     figure.tight_layout()

@@ -90,7 +90,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
     # The altitude limit every window respects.
     limit = plan.constraints.altitude_limit(plan.site)
     ax.axhline(limit, color=look["limit"], lw=1.0, ls="--", zorder=2)
-    ax.text(x[0], limit + 1.0, f" limit {limit:g} deg", color=look["limit"], fontsize=8,
+    ax.text(x[0], limit + 1.0, f" limit {limit:g}°", color=look["limit"], fontsize=8,
             va="bottom")
 
     # The Moon.
@@ -130,7 +130,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
 
     ax.set_ylim(0.0, 90.0)
     ax.set_xlim(x[0], x[-1])
-    ax.set_ylabel("observed altitude (deg)")
+    ax.set_ylabel("observed altitude (°)")
     ax.xaxis.set_major_formatter(mdates.DateFormatter("%H:%M", tz=zone))
     ax.xaxis.set_major_locator(mdates.HourLocator(tz=zone))
     ax.set_xlabel(f"local time ({getattr(zone, 'key', 'UTC')})")

@@ -32,10 +32,12 @@ def known_parallax(parallax, pm_ra_cosdec, pm_dec, radial_velocity) -> np.ndarra
     """The parallax (mas) where it gives a physical distance, else 0 (distance unknown): zero
     or negative parallax, or a space velocity of VMAX_KM_S or more at that distance."""
     parallax = np.asarray(parallax, dtype=float)
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        transverse_km_s = np.hypot(pm_ra_cosdec, pm_dec) / parallax * AU_KM_PER_S_YEAR
-        physical = (parallax > 0.0) & (np.hypot(transverse_km_s, radial_velocity) < VMAX_KM_S)
-    return np.where(physical, parallax, 0.0)
+    # speed^2 = (AU_KM_PER_S_YEAR pm / parallax)^2 + rv^2 < VMAX^2, without dividing.
+    with np.errstate(invalid="ignore", over="ignore"):
+        pm2 = np.square(pm_ra_cosdec) + np.square(pm_dec)
+        room = (VMAX_KM_S * VMAX_KM_S - np.square(radial_velocity)) * np.square(parallax)
+        physical = (parallax > 0.0) & (AU_KM_PER_S_YEAR * AU_KM_PER_S_YEAR * pm2 < room)
+    return parallax if physical.all() else np.where(physical, parallax, 0.0)
 
 
 @dataclass(frozen=True)

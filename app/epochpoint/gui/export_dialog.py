@@ -144,8 +144,10 @@ class ExportDialog(QDialog):
         self.tolerance_spin.setDecimals(2)
         self.tolerance_spin.setSuffix(" ″")
         self.tolerance_spin.setValue(tolerance_arcsec)
-        self.tolerance_spin.setToolTip("The file counts as valid until its fastest-moving "
-                                       "target has moved this far")
+        self.tolerance_spin.setToolTip("Valid within: the file's coordinates count as valid "
+                                       "until its fastest-moving target has moved this far "
+                                       "(coordinate accuracy only; the interlocks are checked "
+                                       "at the export instant)")
         self.include_refused = QCheckBox("Include refused targets (marked with the reason)")
         self.include_refused.setChecked(False)
 
@@ -187,7 +189,7 @@ class ExportDialog(QDialog):
         form = QFormLayout()
         form.addRow("Frame", self.frame_combo)
         form.addRow("Instant", instant)
-        form.addRow("Validity tolerance", self.tolerance_spin)
+        form.addRow("Valid within", self.tolerance_spin)
         form.addRow("", self.include_refused)
         form.addRow("Format", self.format_combo)
         form.addRow("File", file_row)

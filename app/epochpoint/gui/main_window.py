@@ -27,13 +27,14 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QDockWidget, QFr
                                QTableView, QTabWidget, QToolTip, QVBoxLayout, QWidget)
 
 from epochpoint import __version__
+from epochpoint.charts.plan_clock import seconds_of
 from epochpoint.io.planfile import schedule_entries
 
 from . import themes, workers
 from .caution import CautionStrip
 from .document import Document
 from .file_actions import FileActions
-from .instant import InstantBar, instant_label
+from .instant import InstantBar, instant_label, utc_datetime
 from .menus import build_menus
 from .night_bar import NightBar
 from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
@@ -63,6 +64,7 @@ class MainWindow(FileActions, QMainWindow):
         self._plan_generation = -1
         self.instant_choice = "auto"  # "auto", "now" or a chosen ISO instant (module docstring)
         self._instant_key = None      # the night date and site the choice was made for
+        self._sky_instant = None      # the shown instant last given to the sky dome
         self._targets_for_drift = None
 
         self._build_central()
@@ -423,6 +425,7 @@ class MainWindow(FileActions, QMainWindow):
         for panel in (self.tonight, self.skydome):
             panel.set_plan(plan)
             panel.set_selected(self.selected)
+        self._sky_at_shown_instant()
         self._show_computed()
         if plan is not None:
             scheduled = len(plan.schedule.index)
@@ -438,6 +441,8 @@ class MainWindow(FileActions, QMainWindow):
         self.model.set_instant_label(label, state.time)
         self.instant_bar.show_instant(state.time, state.kind, zone)
         self.tonight.set_instant(state.time)
+        if self.skydome.plan is not None and state.time != self._sky_instant:
+            self._sky_at_shown_instant()
         self._show_computed()
         if state.selected == self.selected:
             row = state.ledger_row
@@ -446,6 +451,14 @@ class MainWindow(FileActions, QMainWindow):
             self.ledger.set_row(row)
         if state.earth_orientation_warning:
             self.clocks.table_age.setToolTip(state.earth_orientation_warning)
+
+    def _sky_at_shown_instant(self) -> None:
+        """The sky dome opens at the shown instant (its slider may then wander the night)."""
+        instant = utc_datetime(self.now.time) if self.now is not None else None
+        if instant is None or self.skydome.plan is None:
+            return
+        self._sky_instant = self.now.time
+        self.skydome.set_time(seconds_of(self.skydome.plan, instant))
 
     def _show_computed(self) -> None:
         now, plan = self.now, self.plan

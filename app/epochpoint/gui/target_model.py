@@ -49,9 +49,9 @@ class ColumnSpec:
 COLUMNS = (
     ColumnSpec("name", "Name", "Target name", 120, numeric=False),
     ColumnSpec("ra", "RA (catalogue)", "Right ascension as catalogued (ICRS, at the "
-               "catalogue epoch), h:m:s; type degrees or hh:mm:ss", 104),
+               "catalogue epoch), h:m:s; type decimal ° or hh:mm:ss", 104),
     ColumnSpec("dec", "Dec (catalogue)", "Declination as catalogued (ICRS, at the catalogue "
-               "epoch), °:′:″; type degrees or +dd:mm:ss", 104),
+               "epoch), °:′:″; type decimal ° or +dd:mm:ss", 112),
     ColumnSpec("alt_now", "Alt", "Observed altitude at the shown instant, ° (refraction "
                "included)", 112, computed=True),
     ColumnSpec("pointing", "Pointing", "May the telescope point there at the shown instant? "

@@ -262,7 +262,7 @@ class LedgerPanel(QWidget):
                           f"parallactic angle {pa:+.2f}°" if np.isfinite(pa) else ""))
         kind = str(row.get("instant_kind") or "")
         local = str(row.get("instant_label") or "")
-        show("instant", (f"UTC {row.get('time')}" if row.get("time") else "",
+        show("instant", (str(row.get("time") or ""),
                          f"{local}, {kind}" if local and kind else local))
 
     def _style_verdict(self) -> None:

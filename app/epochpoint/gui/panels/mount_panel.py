@@ -353,7 +353,9 @@ class MountPanel(QWidget):
         place = (f"RA {format_ra_hms(p.ra_apparent_deg, 2)}  Dec "
                  f"{format_dec_dms(p.dec_apparent_deg, 1)} (of date)")
         self.target_place_label.setText(f"{name}: {place}")
-        geometry = (f"Now ({p.time}): altitude {p.alt_deg:.2f}°, azimuth {p.az_deg:.2f}°, "
+        geometry = (f"Now ({p.time}; a slew or sync always uses the present, whatever "
+                    f"instant the list shows): altitude {p.alt_deg:.2f}°, azimuth "
+                    f"{p.az_deg:.2f}°, "
                     f"{p.sun_separation_deg:.1f}° from the Sun. {place}.")
         if p.allowed:
             self.verdict_label.setText(f"Allowed by the site's interlocks. {geometry}")

@@ -10,7 +10,7 @@ clamped.
 """
 from __future__ import annotations
 
-from zoneinfo import ZoneInfo, ZoneInfoNotFoundError, available_timezones
+from zoneinfo import available_timezones
 
 import numpy as np
 from PySide6.QtCore import Signal
@@ -173,7 +173,8 @@ class SiteEditor(QWidget):
         combo.setEditable(True)
         combo.addItems(sorted(available_timezones()))
         combo.setInsertPolicy(QComboBox.InsertPolicy.NoInsert)
-        combo.setToolTip("IANA time zone name for local times (e.g. America/Santiago)")
+        combo.setToolTip("IANA time zone name for local times (e.g. America/Santiago); leave "
+                         "empty to take the zone of the coordinates")
         combo.setMaximumWidth(260)
         combo.lineEdit().editingFinished.connect(self.commit)
         combo.activated.connect(lambda _: self.commit())
@@ -278,11 +279,8 @@ class SiteEditor(QWidget):
         interlocks = self._try(problems, lambda: Interlocks(
             mount=mount or MountLimits(), horizon=mask if mask is not False else None,
             sun_avoidance=values["sun_avoidance"]), needs=["sun_avoidance"])
-        zone = self.fields["timezone"].currentText().strip()
-        try:
-            ZoneInfo(zone)
-        except (ZoneInfoNotFoundError, ValueError):
-            problems["timezone"] = f"{zone!r} is not a known IANA time zone"
+        # An empty zone is found from the coordinates; the core checks a named one.
+        zone = self.fields["timezone"].currentText().strip() or None
         site_keys = [k for k, _, _ in PLACE_FIELDS[1:] + WEATHER_FIELDS]
         site = self._try(problems, lambda: Site(
             name=self.fields["name"].text().strip(), timezone=zone,

@@ -1,7 +1,8 @@
 """The Sky dome tab: the site's sky at a chosen instant of the night (charts.sky_chart).
 
-A slider runs over the night (sunset to sunrise, half an hour either side); it starts at the
-present moment when that falls in the night, else at the middle of the darkest stretch.
+A slider runs over the night (sunset to sunrise, half an hour either side). The main window
+sets it to its shown instant (gui.instant); on its own it starts at the present moment when
+that falls in the night, else at the middle of the darkest stretch.
 Clicking near a target's marker selects it.
 """
 from __future__ import annotations
