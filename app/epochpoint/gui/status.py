@@ -3,8 +3,9 @@ apparent sidereal time and the age of the Earth-orientation table.
 
 The sidereal time is the core's (core.context.make_context: Greenwich apparent sidereal time,
 IAU 2006/2000A via ERFA gst06a, plus the site's east longitude), printed as the command line
-prints it (io.angles.sidereal_time_text); one context per second costs about 1.5 ms. The table age is counted from its last measured value; past
-core.timescale.STALE_AFTER_DAYS it is shown in the warning style.
+prints it (io.angles.sidereal_time_text); one context per second costs about 1.5 ms. The
+table age is counted from its last measured value; past core.timescale.STALE_AFTER_DAYS it is
+shown in the warning style.
 """
 from __future__ import annotations
 

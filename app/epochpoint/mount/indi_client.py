@@ -19,8 +19,10 @@ client of the open protocol is simpler to trust than a wrapper around that loop.
 """
 from __future__ import annotations
 
+import codecs
 import collections
 import itertools
+import logging
 import math
 import re
 import select
@@ -35,6 +37,7 @@ from typing import Callable, Mapping
 
 from .errors import ConnectionLost, IndiTimeout, MountError
 
+LOG = logging.getLogger(__name__)
 PROTOCOL_VERSION = "1.7"
 DEFAULT_PORT = 7624
 KINDS = ("Number", "Switch", "Text", "Light", "BLOB")
@@ -58,6 +61,8 @@ class Vector:
     values: member name -> float (Number), bool (Switch, True for On), str (Text, Light).
     serial: a client-wide counter stamped on every def/set received for this property, so a
     waiter can tell a fresh update from one it has already seen.
+    received: our clock (Unix seconds, UTC) when these values first arrived; an update that
+    repeats the same values keeps it (a device clock read once stays dated by its arrival).
     """
 
     device: str
@@ -71,6 +76,7 @@ class Vector:
     timestamp: str = ""
     label: str = ""
     serial: int = 0
+    received: float = 0.0
 
 
 def parse_number(text: str) -> float:
@@ -281,11 +287,14 @@ class IndiClient:
                 attrs["name"] = name
         self._send(ET.Element("getProperties", attrs), device or "", name or "")
 
-    def send_new(self, device: str, name: str, values: Mapping[str, object]) -> int:
+    def send_new(self, device: str, name: str, values: Mapping[str, object], *,
+                 even_if_lost: bool = False) -> int:
         """Send new values of a defined property (newNumberVector, newSwitchVector, ...).
 
         Returns the serial of the latest update received before sending, for `wait_for`
         conditions that need an answer to this command rather than an earlier update.
+        even_if_lost: send while the socket is open even when the stream can no longer be
+        read (an abort must get out whenever it can be written).
         """
         with self._cond:
             known = self._vectors.get((device, name))
@@ -300,13 +309,14 @@ class IndiClient:
         for member, value in values.items():
             one = ET.SubElement(element, f"one{known.kind}", {"name": member})
             one.text = _format_value(known.kind, value)
-        self._send(element, device, name)
+        self._send(element, device, name, even_if_lost=even_if_lost)
         return serial
 
-    def _send(self, element: ET.Element, device: str, name: str) -> None:
+    def _send(self, element: ET.Element, device: str, name: str, *,
+              even_if_lost: bool = False) -> None:
         data = ET.tostring(element, encoding="utf-8", xml_declaration=False)
         with self._cond:
-            if self._lost is not None:
+            if self._closing or (self._lost is not None and not even_if_lost):
                 raise ConnectionLost(f"{self._lost} (INDI server {self.address})")
         try:
             with self._send_lock:
@@ -320,6 +330,14 @@ class IndiClient:
 
     # -- the reader thread ------------------------------------------------------------------
 
+    def _note_bad_bytes(self, chunk: bytes) -> None:
+        note = (f"the INDI server {self.address} sent bytes that are not UTF-8; they were "
+                "replaced by U+FFFD and the connection kept")
+        LOG.warning("%s: %r", note, chunk[:80])
+        with self._cond:
+            self._messages.append(note)
+            del self._messages[:-_MESSAGES_KEPT]
+
     def _lose(self, reason: str) -> None:
         with self._cond:
             if self._lost is None:
@@ -328,7 +346,10 @@ class IndiClient:
 
     def _read_loop(self) -> None:
         parser = ET.XMLPullParser(events=("start", "end"))
-        parser.feed(b"<indi-stream>")  # the protocol's elements have no root: give them one
+        parser.feed("<indi-stream>")  # the protocol's elements have no root: give them one
+        # INDI streams are UTF-8; a stray byte of another encoding (a Latin-1 degree sign in a
+        # message) is replaced and reported, never taken for a broken connection.
+        decoder = codecs.getincrementaldecoder("utf-8")(errors="replace")
         root, depth = None, 0
         try:
             while not self._closing:
@@ -339,7 +360,10 @@ class IndiClient:
                 if not chunk:
                     self._lose("the INDI server closed the connection")
                     return
-                parser.feed(chunk)
+                text = decoder.decode(chunk)
+                if "\ufffd" in text:
+                    self._note_bad_bytes(chunk)
+                parser.feed(text)
                 for event, element in parser.read_events():
                     if event == "start":
                         depth += 1
@@ -391,7 +415,8 @@ class IndiClient:
                 values=MappingProxyType(members), perm=attrs.get("perm", "ro"),
                 rule=attrs.get("rule", ""), timeout_s=parse_number(attrs.get("timeout", "0")),
                 timestamp=attrs.get("timestamp", ""), label=attrs.get("label", ""),
-                serial=serial)
+                serial=serial, received=old.received if old is not None and
+                dict(old.values) == members else time.time())
         elif old is not None and old.kind == kind:  # set* of an undefined property: ignored
             values = dict(old.values)
             values.update(members)
@@ -399,7 +424,8 @@ class IndiClient:
                 old, state=attrs.get("state", old.state), values=MappingProxyType(values),
                 timeout_s=parse_number(attrs["timeout"]) if "timeout" in attrs
                 else old.timeout_s,
-                timestamp=attrs.get("timestamp", old.timestamp), serial=serial)
+                timestamp=attrs.get("timestamp", old.timestamp), serial=serial,
+                received=old.received if values == dict(old.values) else time.time())
         else:
             return
         log = self._states.setdefault(key, collections.deque(maxlen=_STATES_KEPT))

@@ -13,10 +13,24 @@ OFFSET hours). A controller converts of-date coordinates with its own site and c
 
 Threads: a GUI worker calls `slew_to_target()` (it blocks, always with a deadline); `abort()`
 may be called meanwhile from any other thread, and the waiting slew then sees the motion end.
+An abort latches: checking for an abort and sending a motion are one step under one lock, so
+once an abort is recorded nothing of the command begun before it moves the mount (the first
+slew, the refining slew or a watch), until the user begins a new command (`begin_command`).
+Every answer the device gives to a switch or a number (Ok, Busy, Alert) is checked before it
+is relied on: a refused ON_COORD_SET never lets the coordinates through as a sync.
 Nothing here retries after a lost connection.
+
+Clocks: a controller converts coordinates of date with its own clock; 1 s of clock error is
+15 arcsec of hour angle at the equator (the sky turns 360 deg in a sidereal day, common
+practice). Before a slew or sync the device's TIME_UTC (dated by its arrival) is compared with
+our clock: above CLOCK_REFUSE_S (2 s, 30 arcsec: beyond a typical slew's accepted residual and
+a small camera field's margin) the command is refused; above CLOCK_WARN_S (0.2 s, 3 arcsec:
+the seeing-limited scale) it is sent with a warning. `push_site` sends TIME_UTC to the
+millisecond.
 """
 from __future__ import annotations
 
+import threading
 import time
 from dataclasses import dataclass
 from datetime import datetime, timezone
@@ -26,8 +40,10 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 import numpy as np
 
 from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
+from ..core.context import make_context
 from ..core.site import Site
 from ..core.targets import Targets
+from ..core.track import slew_end_seconds, track_refusal
 from ..core.vectors import separation, unit_vectors
 from .errors import ConnectionLost, IndiTimeout, InterlockRefused, MountError, MountFailed
 from .indi_client import IndiClient, Vector, parse_address
@@ -50,6 +66,17 @@ QUIET_S = 0.3
 SETTLE_LIMIT_S = 2.0
 # Within this of the command, an Ok without a Busy means the mount was already there.
 ARRIVED_ARCSEC = 60.0
+# Device clock minus ours: refuse beyond 2 s (30 arcsec of hour angle at the equator), warn
+# beyond 0.2 s (3 arcsec); see the module docstring.
+CLOCK_REFUSE_S = 2.0
+CLOCK_WARN_S = 0.2
+SIDEREAL_ARCSEC_PER_S = 15.041  # the sky's turning (common practice)
+# The track checked before a slew when no block length is given.
+DEFAULT_TRACK_S = 600.0
+# While watching a track: how often, and how far ahead a limit must be seen to stop in time.
+WATCH_POLL_S = 2.0
+WATCH_LEAD_S = 30.0
+AT_LIMIT = ("stop-tracking", "abort")
 
 Notify = Callable[[str], None]
 
