@@ -11,6 +11,8 @@ from ..core.ranges import checked
 MAX_WAIT_S = 3600.0
 # A degree: a residual beyond this is a failed slew, not a pointing to refine.
 MAX_RESIDUAL_ARCSEC = 3600.0
+# Twelve hours: the longest track checked before a slew (a night's block at most).
+MAX_TRACK_S = 43200.0
 
 
 def checked_wait(seconds, name: str = "timeout") -> float:
@@ -21,3 +23,8 @@ def checked_wait(seconds, name: str = "timeout") -> float:
 def checked_residual(arcsec, name: str = "largest accepted residual") -> float:
     """arcsec as a float in (0, MAX_RESIDUAL_ARCSEC], else ValueError in one line."""
     return checked(arcsec, name, 0.0, MAX_RESIDUAL_ARCSEC, lo_open=True, unit="arcsec")
+
+
+def checked_track_seconds(seconds, name: str = "track to check") -> float:
+    """seconds as a float in [0, MAX_TRACK_S], else ValueError in one line."""
+    return checked(seconds, name, 0.0, MAX_TRACK_S, unit="s")

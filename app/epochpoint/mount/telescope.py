@@ -47,7 +47,7 @@ from ..core.track import slew_end_seconds, track_refusal
 from ..core.vectors import separation, unit_vectors
 from .errors import ConnectionLost, IndiTimeout, InterlockRefused, MountError, MountFailed
 from .indi_client import IndiClient, Vector, parse_address
-from .options import checked_residual, checked_wait
+from .options import checked_residual, checked_track_seconds, checked_wait
 from .pointing import Pointing, pointing_for
 
 EOD_COORD = "EQUATORIAL_EOD_COORD"
@@ -205,8 +205,28 @@ class Telescope:
 
     def __init__(self, client: IndiClient, device: str):
         self.client, self.device = client, device
-        self.aborts = 0  # how many aborts were sent, so a waiting slew knows it was stopped
+        self.aborts = 0  # how many aborts were recorded: a command begun before one is stopped
         self.motions = 0  # how many motion commands were sent (coordinates after SLEW/TRACK)
+        # Held while checking the abort latch and sending a motion (or sending the abort), so
+        # an abort is either seen before the motion is sent or sent after it.
+        self._motion_lock = threading.Lock()
+        self._latch_lock = threading.Lock()
+
+    def begin_command(self) -> int:
+        """A new command from the user: its token. An abort recorded after this stops it."""
+        with self._latch_lock:
+            return self.aborts
+
+    def latch_abort(self) -> None:
+        """Record an abort at once, without the network: from now on no command begun earlier
+        sends a motion. abort() does this first; a GUI calls it on its own thread too."""
+        with self._latch_lock:
+            self.aborts += 1
+
+    def aborted_since(self, token: int) -> bool:
+        """True when an abort was recorded after begin_command() returned token."""
+        with self._latch_lock:
+            return self.aborts != token
 
     @classmethod
     def open(cls, address: str, device: str | None = None, *, timeout_s: float = 10.0,
@@ -317,7 +337,8 @@ class Telescope:
             time_utc=(time_utc.rstrip("Z") + "Z") if time_utc else None, utc_offset_h=offset)
 
     def push_site(self, site: Site, timeout_s: float = 10.0, notify: Notify = _silent) -> None:
-        """Send our site (GEOGRAPHIC_COORD) and clock (TIME_UTC with the site's UTC offset)."""
+        """Send our site (GEOGRAPHIC_COORD) and clock (TIME_UTC to the millisecond, with the
+        site's UTC offset)."""
         for name in ("GEOGRAPHIC_COORD", "TIME_UTC"):
             if self._vector(name) is None:
                 raise MountFailed(f"device {self.device} has no {name}; cannot send our site")
@@ -325,11 +346,47 @@ class Telescope:
                            {"LAT": site.latitude, "LONG": site.longitude % 360.0,
                             "ELEV": site.height}, timeout_s)
         now = datetime.now(timezone.utc)
-        self._set_and_wait("TIME_UTC", {"UTC": now.strftime("%Y-%m-%dT%H:%M:%S"),
+        stamp = now.strftime("%Y-%m-%dT%H:%M:%S.%f")[:-3]  # INDI: ISO 8601 UTC, no zone letter
+        self._set_and_wait("TIME_UTC", {"UTC": stamp,
                                         "OFFSET": f"{_utc_offset_hours(site, now):.2f}"},
                            timeout_s)
         notify(f"Sent our site (lat {site.latitude:+.5f}, lon {site.longitude:+.5f}, "
-               f"{site.height:.0f} m) and clock ({now:%Y-%m-%dT%H:%M:%S}Z) to {self.device}.")
+               f"{site.height:.0f} m) and clock ({stamp}Z) to {self.device}.")
+
+    def clock_offset(self) -> tuple[float, float] | None:
+        """(device clock minus ours, its uncertainty), seconds, from TIME_UTC; None when the
+        device has no readable TIME_UTC.
+
+        The value is the device's clock when it arrived (Vector.received, our clock then); a
+        value in whole seconds is taken at the middle of its second, +-0.5 s.
+        """
+        clock = self._vector("TIME_UTC")
+        text = str(clock.values.get("UTC", "")).strip().rstrip("Z") if clock else ""
+        try:
+            device = datetime.fromisoformat(text).replace(tzinfo=timezone.utc)
+        except ValueError:
+            return None
+        half = 0.0005 if "." in text else 0.5
+        return device.timestamp() + half - clock.received, half
+
+    def check_clock(self, name: str, notify: Notify = _silent) -> None:
+        """Refuse (InterlockRefused, nothing sent) when the device clock is off by more than
+        CLOCK_REFUSE_S; warn beyond CLOCK_WARN_S; say so when it cannot be compared."""
+        found = self.clock_offset()
+        if found is None:
+            notify(f"Caution: cannot compare clocks: {self.device} reports no readable "
+                   "TIME_UTC; its coordinates of date depend on its own clock.")
+            return
+        offset, doubt = found
+        off = abs(offset) - doubt  # at least this far apart
+        arcsec = off * SIDEREAL_ARCSEC_PER_S
+        text = (f"the mount's clock (TIME_UTC) differs from ours by {offset:+.2f} s "
+                f"(+-{doubt:g} s), about {max(arcsec, 0.0):.0f} arcsec of hour angle")
+        if off > CLOCK_REFUSE_S:
+            raise InterlockRefused(name, f"{text}, more than {CLOCK_REFUSE_S:g} s; send our "
+                                         "clock first (--push-site, or Send site and clock)")
+        if off > CLOCK_WARN_S:
+            notify(f"Caution: {text} (over {CLOCK_WARN_S:g} s).")
 
     def _set_and_wait(self, name: str, values: dict, timeout_s: float) -> None:
         serial = self.client.send_new(self.device, name, values)
@@ -342,24 +399,69 @@ class Telescope:
     # -- motion -----------------------------------------------------------------------------
 
     def abort(self, timeout_s: float = 5.0) -> str | None:
-        """Send TELESCOPE_ABORT_MOTION and wait until the coordinates are no longer Busy.
+        """Latch the abort, send TELESCOPE_ABORT_MOTION and wait until the coordinates are no
+        longer Busy.
 
-        Always allowed, whatever the interlocks say. Returns the coordinates' state then.
+        Always allowed, whatever the interlocks say, and sent whenever the socket can be
+        written, even when the stream from the server can no longer be read. Returns the
+        coordinates' state then; MountFailed when the device answers the abort with Alert;
+        ConnectionLost (after sending) when no answer can be read.
         """
+        self.latch_abort()
         if self._vector("TELESCOPE_ABORT_MOTION") is None:
             raise MountFailed(f"device {self.device} has no TELESCOPE_ABORT_MOTION")
-        self.aborts += 1
-        self.client.send_new(self.device, "TELESCOPE_ABORT_MOTION", {"ABORT": True})
+        with self._motion_lock:
+            serial = self.client.send_new(self.device, "TELESCOPE_ABORT_MOTION",
+                                          {"ABORT": True}, even_if_lost=True)
+        lost = self.client.lost
+        if lost is not None:
+            raise ConnectionLost(f"ABORT was sent to {self.device}, but {lost}: its answer "
+                                 "cannot be read; check that the mount stopped")
         coords = self.coordinate_property()
-        if coords is None:
-            return None
-        return self.client.wait_for(lambda: self._state(coords) != "Busy" and self._state(coords),
-                                    timeout_s, "the motion to stop")
 
-    def command(self, pointing: Pointing, sync: bool = False) -> _Command:
-        """Send ON_COORD_SET (TRACK, or SLEW without it; SYNC) and the target's coordinates.
+        def refused():
+            return "Alert" in self.client.states_since(self.device, "TELESCOPE_ABORT_MOTION",
+                                                       serial)
 
-        The caller has checked the interlocks; this only refuses a parked mount.
+        def ended():
+            state = self._state(coords) if coords else "Ok"
+            return refused() or (state != "Busy" and state)
+
+        state = self.client.wait_for(ended, timeout_s, "the motion to stop")
+        if refused():
+            raise MountFailed(f"device {self.device} refused the abort (Alert): "
+                              f"{self.last_message()}; stop the mount at the mount")
+        return self._state(coords) if coords else None
+
+    def _switch_to(self, name: str, member: str, timeout_s: float = TAKE_UP_S) -> None:
+        """Set switch `member` of property `name` (the others off) and check the answer: the
+        device must answer without Alert and show the member On, else MountFailed."""
+        vector = self._vector(name)
+        serial = self.client.send_new(self.device, name, {m: m == member for m in vector.values})
+
+        def answered():
+            states = self.client.states_since(self.device, name, serial)
+            return states if states and states[-1] != "Busy" else None
+
+        try:
+            states = self.client.wait_for(answered, timeout_s, f"{self.device} to answer {name}")
+        except IndiTimeout:
+            raise MountFailed(f"device {self.device} did not answer {name} {member} within "
+                              f"{timeout_s:g} s") from None
+        now = self._vector(name)
+        if "Alert" in states or not now.values.get(member):
+            shown = ", ".join(m for m, on in now.values.items() if on) or "none"
+            raise MountFailed(f"device {self.device} refused {name} {member} (state "
+                              f"{states[-1]}, on: {shown}): {self.last_message()}")
+
+    def command(self, pointing: Pointing, sync: bool = False,
+                token: int | None = None) -> _Command | None:
+        """Send ON_COORD_SET (TRACK, or SLEW without it; SYNC), check the device took it, then
+        send the target's coordinates.
+
+        The caller has checked the interlocks; this refuses a parked mount and a refused mode.
+        token (from begin_command): when an abort was recorded since, nothing is sent and None
+        is returned; the check and the sending of the coordinates are one step.
         """
         coords = self.coordinate_property()
         if coords is None:
@@ -373,20 +475,44 @@ class Telescope:
         mode = "SYNC" if sync else ("TRACK" if "TRACK" in on_set.values else "SLEW")
         if mode not in on_set.values:
             raise MountFailed(f"device {self.device} cannot {mode.lower()}")
-        self.client.send_new(self.device, "ON_COORD_SET", {m: m == mode for m in on_set.values})
-        if coords == EOD_COORD:
-            ra_deg, dec_deg = pointing.ra_apparent_deg, pointing.dec_apparent_deg
-        else:
-            ra_deg, dec_deg = pointing.ra_j2000_deg, pointing.dec_j2000_deg
-        if not sync:
-            self.motions += 1  # counted before sending: a lost connection may still have sent it
-        serial = self.client.send_new(self.device, coords, {"RA": ra_deg / 15.0, "DEC": dec_deg})
+        if token is not None and self.aborted_since(token):
+            return None
+        # The mode decides what the coordinates do: never send them unless it was taken.
+        self._switch_to("ON_COORD_SET", mode)
+        ra_deg, dec_deg = command_place(pointing, coords)
+        with self._motion_lock:
+            if token is not None and self.aborted_since(token):
+                return None
+            if not sync:
+                self.motions += 1  # counted first: a lost connection may still have sent it
+            serial = self.client.send_new(self.device, coords,
+                                          {"RA": ra_deg / 15.0, "DEC": dec_deg})
         return _Command(coords, ra_deg, dec_deg, serial, sync)
+
+    def stop_tracking(self) -> None:
+        """TELESCOPE_TRACK_STATE to TRACK_OFF, checked; without it (or refused), an abort."""
+        if self._vector("TELESCOPE_TRACK_STATE") is not None:
+            try:
+                self._switch_to("TELESCOPE_TRACK_STATE", "TRACK_OFF")
+                return
+            except MountFailed:
+                pass
+        self.abort()
 
     def _offset_arcsec(self, command: _Command) -> float:
         v = self._vector(command.coordinate_property)
         return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"],
                                        command.ra_deg, command.dec_deg)
+
+    def wait_for_answer(self, command: _Command, timeout_s: float = TAKE_UP_S) -> str:
+        """The device's first answer to the coordinates (Busy, Ok, Idle or Alert)."""
+        log = lambda: self.client.states_since(self.device, command.coordinate_property,  # noqa: E731
+                                               command.serial)
+        try:
+            return self.client.wait_for(log, timeout_s, f"{self.device} to answer")[-1]
+        except IndiTimeout:
+            raise MountFailed(f"device {self.device} did not answer the coordinates within "
+                              f"{timeout_s:g} s") from None
 
     def wait_until_ended(self, command: _Command, timeout_s: float) -> str:
         """Follow the coordinates' state until the command ended: Ok, Idle (stopped) or Alert.
@@ -431,6 +557,13 @@ def _utc_offset_hours(site: Site, instant: datetime) -> float:
     return instant.astimezone(zone).utcoffset().total_seconds() / 3600.0
 
 
+def command_place(pointing: Pointing, prop: str) -> tuple[float, float]:
+    """(RA, Dec) in degrees that a command through coordinate property `prop` sends."""
+    if prop == EOD_COORD:
+        return pointing.ra_apparent_deg, pointing.dec_apparent_deg
+    return pointing.ra_j2000_deg, pointing.dec_j2000_deg
+
+
 def _place_text(prop: str, ra_deg: float, dec_deg: float) -> str:
     from ..io import format_dec_dms, format_ra_hms
 
@@ -446,71 +579,140 @@ def checked_pointing(targets: Targets, site: Site, name: str, when="now") -> Poi
     return pointing
 
 
+def slew_seconds_from_mount(scope: Telescope, pointing: Pointing, site: Site) -> float:
+    """The slew's estimated duration (s) from where the mount reports it points to the
+    pointing, with the site's slew rate and settle time (core.track.slew_end_seconds). The
+    mount's hour angle is the pointing's shifted by their right-ascension difference (good to
+    refraction, under a degree: ample for a time). Unknown position: a half-turn slew."""
+    status = scope.status()
+    mount = site.interlocks.mount
+    if status.ra_deg is None or status.dec_deg is None:
+        return mount.settle + 180.0 / mount.slew_rate
+    ra_now = status.ra_deg
+    if status.coordinate_property == J2000_COORD:  # onto the equator of date, near enough
+        ra_now += pointing.ra_apparent_deg - pointing.ra_j2000_deg
+    ha_mount = pointing.ha_deg + (pointing.ra_apparent_deg - ra_now)
+    ha_mount = (ha_mount + 180.0) % 360.0 - 180.0
+    return slew_end_seconds(ha_mount, status.dec_deg, pointing.ha_deg,
+                            pointing.dec_observed_deg, mount, site.latitude)
+
+
+def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
+                  track_s: float, notify: Notify = _silent) -> Pointing:
+    """The target's place now, refused (InterlockRefused, nothing sent) when the interlocks
+    forbid it now, at the estimated end of the slew, or at any instant of the track for
+    track_s seconds after it (core.track.track_refusal: the same observed place and limits
+    as the instant check, sampled every second)."""
+    pointing = checked_pointing(targets, site, name)
+    slew_s = slew_seconds_from_mount(scope, pointing, site)
+    ctx = make_context(pointing.time, site)
+    at_s, why = track_refusal(pointing.ra_apparent_deg, pointing.dec_apparent_deg, site, ctx,
+                              0.0, slew_s + track_s)
+    if at_s is not None and at_s <= slew_s:
+        raise InterlockRefused(name, f"{why} by the end of the slew (estimated {slew_s:.0f} s "
+                                     "from the mount's slew rate)")
+    if at_s is not None:
+        raise InterlockRefused(name, f"{why} {(at_s - slew_s) / 60.0:.1f} min into the "
+                                     f"{track_s / 60.0:g} min track after the slew")
+    notify(f"Interlocks: {name} allowed now, at the end of the slew (about {slew_s:.0f} s) "
+           f"and for {track_s / 60.0:g} min of tracking after it.")
+    return pointing
+
+
 def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
                    sync: bool = False, wait: bool = False, timeout_s: float = 120.0,
-                   tolerance_arcsec: float = 2.0, notify: Notify = _silent) -> SlewReport:
-    """Point the mount at target `name`: interlocks first, then slew (TRACK) or sync.
+                   tolerance_arcsec: float = 2.0, track_s: float = DEFAULT_TRACK_S,
+                   token: int | None = None, notify: Notify = _silent) -> SlewReport:
+    """Point the mount at target `name`: interlocks and clocks first, then slew (TRACK) or sync.
 
-    With wait, follow the motion until it ends; when the reported coordinates differ from the
-    target's place by more than tolerance_arcsec, issue one refining slew (interlocks checked
-    again) and report the residual. An abort() from another thread while this waits ends the
-    slew quietly: no refinement, `aborted` set. Raises ValueError for a timeout or tolerance
-    out of range and InterlockRefused, both before anything is sent; ConnectionLost,
-    IndiTimeout or MountFailed (Alert, parked, no such property). Any failure after the motion
-    was sent first sends an abort (when the connection allows) and says in its message that
-    the mount may still be moving.
+    The interlocks are checked now, at the estimated end of the slew and over track_s seconds
+    of tracking after it (a sync: now only); the device's clock must agree with ours
+    (Telescope.check_clock). With wait, follow the motion until it ends; when the reported
+    coordinates differ from the target's place by more than tolerance_arcsec, issue one
+    refining slew (all checks again) and report the residual. token: from
+    scope.begin_command() when the user pressed the button (taken here otherwise); an abort
+    recorded after it stops everything, quietly: nothing more is sent, `aborted` set. Raises
+    ValueError for a timeout or tolerance out of range and InterlockRefused, both before
+    anything is sent; ConnectionLost, IndiTimeout or MountFailed (Alert, a refused mode,
+    parked, no such property). Any failure after the motion was sent first sends an abort
+    and says in its message that the mount may still be moving.
     """
     # Every option is checked before anything is sent.
     timeout_s = checked_wait(timeout_s)
     tolerance_arcsec = checked_residual(tolerance_arcsec)
-    action = "sync" if sync else "slew"
-    aborts_before, motions_before = scope.aborts, scope.motions
-    stopped = lambda: scope.aborts != aborts_before  # noqa: E731
-    pointing = checked_pointing(targets, site, name)
+    track_s = checked_track_seconds(track_s)
+    token = scope.begin_command() if token is None else token
+    motions_before = scope.motions
+    pointing = _checked(scope, targets, site, name, sync, track_s, notify)
     notify(CAUTION)
     try:
         return _point(scope, targets, site, name, pointing, sync=sync, wait=wait,
-                      timeout_s=timeout_s, tolerance_arcsec=tolerance_arcsec, notify=notify,
-                      stopped=stopped)
+                      timeout_s=timeout_s, tolerance_arcsec=tolerance_arcsec, track_s=track_s,
+                      notify=notify, token=token)
     except Exception as err:
         if scope.motions == motions_before:
             raise  # nothing that moves the mount was sent
         raise _failed_in_motion(scope, err, notify) from None
 
 
+def _checked(scope: Telescope, targets: Targets, site: Site, name: str, sync: bool,
+             track_s: float, notify: Notify) -> Pointing:
+    """The interlocks (a slew: now, at its end and along the track; a sync: now) and the
+    clocks, before anything is sent."""
+    if sync:
+        pointing = checked_pointing(targets, site, name)
+    else:
+        pointing = checked_track(scope, targets, site, name, track_s, notify)
+    scope.check_clock(name, notify)
+    return pointing
+
+
 def _failed_in_motion(scope: Telescope, err: Exception, notify: Notify) -> MountError:
     """The error of a slew that failed after its motion was sent: an abort is sent first
-    (unless the connection is gone) and the message says the mount may still be moving."""
+    (while the socket can be written) and the message says the mount may still be moving."""
     text = " ".join(str(err).split()) or type(err).__name__
-    if isinstance(err, ConnectionLost):
-        return ConnectionLost(f"{text}; no abort could be sent: the mount may still be "
-                              "moving, stop it at the mount")
     try:
         notify("The slew failed: sending an abort.")
         scope.abort()
         said = "abort sent, but the mount may still be moving: check it"
+    except ConnectionLost as abort_err:
+        said = (f"{' '.join(str(abort_err).split())}; the mount may still be moving, stop it "
+                "at the mount")
     except Exception as abort_err:  # noqa: BLE001 - reported in the message
         said = (f"the abort failed too ({' '.join(str(abort_err).split())}): the mount may "
                 "still be moving, stop it at the mount")
+    if isinstance(err, ConnectionLost):
+        return ConnectionLost(f"{text}; {said}")
     kind = type(err) if isinstance(err, MountFailed) else MountFailed
     return kind(f"{text}; {said}")
 
 
 def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: Pointing, *,
-           sync: bool, wait: bool, timeout_s: float, tolerance_arcsec: float, notify: Notify,
-           stopped: Callable[[], bool]) -> SlewReport:
+           sync: bool, wait: bool, timeout_s: float, tolerance_arcsec: float, track_s: float,
+           notify: Notify, token: int) -> SlewReport:
     """Send the command, then (with wait) follow it and refine once: see slew_to_target."""
     action = "sync" if sync else "slew"
-    command = scope.command(pointing, sync=sync)
+    stopped = lambda: scope.aborted_since(token)  # noqa: E731
+    prop = scope.coordinate_property() or EOD_COORD
+    ra_deg, dec_deg = command_place(pointing, prop)
+    report = dict(target=name, action=action, coordinate_property=prop,
+                  final_state=None, reported_ra_deg=None, reported_dec_deg=None,
+                  first_residual_arcsec=None, residual_arcsec=None, refined=False,
+                  tolerance_arcsec=tolerance_arcsec)
+    command = scope.command(pointing, sync=sync, token=token)
+    if command is None:
+        notify(f"The {action} of {name} was stopped by an abort before anything moved.")
+        return SlewReport(commanded_ra_deg=ra_deg, commanded_dec_deg=dec_deg,
+                          pointing=pointing, aborted=True, **report)
     started = time.monotonic()
     notify(f"{action.capitalize()} {name}: "
            f"{_place_text(command.coordinate_property, command.ra_deg, command.dec_deg)}; "
            f"alt {pointing.alt_deg:.2f} az {pointing.az_deg:.2f} deg at {pointing.time}")
-    report = dict(target=name, action=action, coordinate_property=command.coordinate_property,
-                  final_state=None, reported_ra_deg=None, reported_dec_deg=None,
-                  first_residual_arcsec=None, residual_arcsec=None, refined=False,
-                  tolerance_arcsec=tolerance_arcsec)
     if not wait:
+        state = scope.wait_for_answer(command)
+        if state == "Alert":
+            raise MountFailed(f"the {action} was refused (Alert): {scope.last_message()}")
+        report["final_state"] = None if state == "Busy" else state
         return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
                           pointing=pointing, **report)
 
@@ -522,13 +724,18 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
     if not sync and state == "Ok" and not stopped() and residual > tolerance_arcsec:
         notify(f"Ended {residual:.2f} arcsec from the target (tolerance "
                f"{tolerance_arcsec:g}): one refining slew.")
-        pointing = checked_pointing(targets, site, name)
-        command = scope.command(pointing, sync=False)
-        state = _follow(scope, command, timeout_s, "refining slew", time.monotonic(), notify,
-                        stopped)
-        residual = _residual(scope, command, targets, site, name)
-        report.update(residual_arcsec=residual, final_state=state, refined=True,
-                      aborted=stopped())
+        pointing = _checked(scope, targets, site, name, False, track_s, notify)
+        refine = scope.command(pointing, sync=False, token=token)
+        if refine is None:
+            notify("The refining slew was stopped by an abort before anything moved.")
+            report.update(aborted=True)
+        else:
+            command = refine
+            state = _follow(scope, command, timeout_s, "refining slew", time.monotonic(),
+                            notify, stopped)
+            residual = _residual(scope, command, targets, site, name)
+            report.update(residual_arcsec=residual, final_state=state, refined=True,
+                          aborted=stopped())
     v = scope.client.vector(scope.device, command.coordinate_property)
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
     return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
@@ -553,8 +760,5 @@ def _residual(scope: Telescope, command: _Command, targets: Targets, site: Site,
     """Reported coordinates against the target's place now, in the command's frame (arcsec)."""
     now = pointing_for(targets, site, name)
     v = scope.client.vector(scope.device, command.coordinate_property)
-    if command.coordinate_property == EOD_COORD:
-        ra_deg, dec_deg = now.ra_apparent_deg, now.dec_apparent_deg
-    else:
-        ra_deg, dec_deg = now.ra_j2000_deg, now.dec_j2000_deg
+    ra_deg, dec_deg = command_place(now, command.coordinate_property)
     return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"], ra_deg, dec_deg)
