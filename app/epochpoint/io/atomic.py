@@ -127,8 +127,9 @@ def termination_cleanup():
 
     def on_terminate(signum, frame):
         remove_live_temporaries()
-        print("epochpoint: terminated; unfinished output removed", file=sys.stderr)
-        raise SystemExit(EXIT_TERMINATED)
+        print("epochpoint: terminated; unfinished output removed", file=sys.stderr, flush=True)
+        # End at once: worker threads still computing chunks must not hold the process open.
+        os._exit(EXIT_TERMINATED)
 
     previous = signal.signal(signal.SIGTERM, on_terminate)
     try:
