@@ -11,9 +11,7 @@ FK5 at equinox J2000.0), never from our engine.
 from __future__ import annotations
 
 import socket
-import threading
 import time
-import xml.etree.ElementTree as ET
 
 import numpy as np
 import pytest
@@ -27,73 +25,18 @@ from epochpoint.core.targets import Targets
 from epochpoint.mount import ConnectionLost, IndiClient, Telescope, slew_to_target
 from epochpoint.mount.indi_client import parse_address, parse_number
 from epochpoint.mount.telescope import J2000_COORD, angular_distance_arcsec
+from scripted_peer import DEVICE, ScriptedPeer, definitions
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
 
-DEVICE = "Scripted Mount"
-DEFINITIONS = f"""
-<defSwitchVector device="{DEVICE}" name="CONNECTION" state="Ok" perm="rw" rule="OneOfMany">
-  <defSwitch name="CONNECT">On</defSwitch><defSwitch name="DISCONNECT">Off</defSwitch>
-</defSwitchVector>
-<defNumberVector device="{DEVICE}" name="EQUATORIAL_COORD" state="Idle" perm="rw" timeout="60">
-  <defNumber name="RA" format="%010.6m" min="0" max="24" step="0">1:30:00</defNumber>
-  <defNumber name="DEC" format="%010.6m" min="-90" max="90" step="0">-10:30:00</defNumber>
-</defNumberVector>
-<defSwitchVector device="{DEVICE}" name="ON_COORD_SET" state="Idle" perm="rw" rule="OneOfMany">
-  <defSwitch name="SLEW">On</defSwitch><defSwitch name="SYNC">Off</defSwitch>
-</defSwitchVector>
-<defSwitchVector device="{DEVICE}" name="TELESCOPE_ABORT_MOTION" state="Idle" perm="rw"
-  rule="AtMostOne"><defSwitch name="ABORT">Off</defSwitch></defSwitchVector>
-"""
-
-
-class ScriptedPeer:
-    """A one-connection INDI 'server' on loopback: sends DEFINITIONS, records what it gets,
-    and answers a new EQUATORIAL_COORD with Busy, then Ok at the commanded place."""
-
-    def __init__(self, definitions: str = DEFINITIONS):
-        self.definitions = definitions
-        self.listener = socket.create_server(("127.0.0.1", 0))
-        self.port = self.listener.getsockname()[1]
-        self.received: list[ET.Element] = []
-        self.thread = threading.Thread(target=self._serve, daemon=True)
-        self.thread.start()
-
-    def _serve(self):
-        self.listener.settimeout(10.0)
-        connection, _ = self.listener.accept()
-        with connection:
-            connection.sendall(self.definitions.encode())
-            parser = ET.XMLPullParser(events=("end",))
-            parser.feed(b"<stream>")
-            connection.settimeout(10.0)
-            try:
-                while chunk := connection.recv(4096):
-                    parser.feed(chunk)
-                    for _, element in parser.read_events():
-                        if element.tag.startswith(("new", "getProperties")):
-                            self.received.append(element)
-                            self._answer(connection, element)
-            except OSError:
-                pass
-
-    def _answer(self, connection, element):
-        if element.tag == "newNumberVector" and element.get("name") == "EQUATORIAL_COORD":
-            values = "".join(f'<oneNumber name="{one.get("name")}">{one.text}</oneNumber>'
-                             for one in element)
-            for state in ("Busy", "Ok"):
-                connection.sendall(f'<setNumberVector device="{DEVICE}" name="EQUATORIAL_COORD" '
-                                   f'state="{state}">{values}</setNumberVector>'.encode())
-                time.sleep(0.05)
-
-    def close(self):
-        self.listener.close()
+# A J2000-only mount that slews or syncs (no TRACK mode).
+DEFINITIONS = definitions(coords="EQUATORIAL_COORD", modes=("SLEW", "SYNC"))
 
 
 @pytest.fixture
 def peer():
-    scripted = ScriptedPeer()
+    scripted = ScriptedPeer(DEFINITIONS)
     yield scripted
     scripted.close()
 
@@ -166,7 +109,7 @@ def test_a_j2000_only_mount_gets_the_geocentric_astrometric_place(peer):
 
 
 def test_nonsense_from_the_peer_is_a_lost_connection():
-    scripted = ScriptedPeer(definitions="<defNumberVector device='x' name='y'><oops></def>")
+    scripted = ScriptedPeer("<defNumberVector device='x' name='y'><oops></def>")
     try:
         with IndiClient("127.0.0.1", scripted.port) as client:
             with pytest.raises(ConnectionLost, match="malformed XML"):

@@ -1,18 +1,15 @@
 """Mount options are checked before any connection, and a slew that fails once its motion was
 sent stops the mount (abort sent) and says it may still be moving.
 
-The peer is a scripted loopback INDI "server" (INDI protocol 1.7 element names, E. C. Downey
-2007) whose mount takes a slew (Busy) and never reports it ended, so the wait runs out. The
+The peer is the scripted loopback INDI "server" of scripted_peer.py, whose mount takes a slew
+(Busy) and never reports it ended, so the wait runs out. The
 target is put at the anti-solar point overhead (astropy's Sun and sidereal time), so the
 site's interlocks allow it whatever the time of day.
 """
 from __future__ import annotations
 
-import socket
-import threading
 from pathlib import Path
 import time
-import xml.etree.ElementTree as ET
 
 import pytest
 from astropy import units as u
@@ -23,80 +20,12 @@ from epochpoint.cli.main import build_parser, main
 from epochpoint.core.site import Site
 from epochpoint.core.targets import Targets
 from epochpoint.mount import IndiTimeout, Telescope, slew_to_target
+from scripted_peer import ScriptedPeer
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
               pytest.mark.filterwarnings("ignore::epochpoint.StaleEarthOrientation")]
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_targets"
-DEVICE = "Stuck Mount"
-DEFINITIONS = f"""
-<defSwitchVector device="{DEVICE}" name="CONNECTION" state="Ok" perm="rw" rule="OneOfMany">
-  <defSwitch name="CONNECT">On</defSwitch><defSwitch name="DISCONNECT">Off</defSwitch>
-</defSwitchVector>
-<defNumberVector device="{DEVICE}" name="EQUATORIAL_EOD_COORD" state="Idle" perm="rw">
-  <defNumber name="RA" format="%010.6m" min="0" max="24" step="0">1:30:00</defNumber>
-  <defNumber name="DEC" format="%010.6m" min="-90" max="90" step="0">-10:30:00</defNumber>
-</defNumberVector>
-<defSwitchVector device="{DEVICE}" name="ON_COORD_SET" state="Idle" perm="rw" rule="OneOfMany">
-  <defSwitch name="TRACK">On</defSwitch><defSwitch name="SLEW">Off</defSwitch>
-  <defSwitch name="SYNC">Off</defSwitch>
-</defSwitchVector>
-<defSwitchVector device="{DEVICE}" name="TELESCOPE_ABORT_MOTION" state="Idle" perm="rw"
-  rule="AtMostOne"><defSwitch name="ABORT">Off</defSwitch></defSwitchVector>
-"""
-
-
-class StuckMount:
-    """Accepts connections; a new EQUATORIAL_EOD_COORD turns Busy and stays Busy until an
-    abort arrives, which makes it Idle. Records every element received."""
-
-    def __init__(self):
-        self.listener = socket.create_server(("127.0.0.1", 0))
-        self.port = self.listener.getsockname()[1]
-        self.address = f"127.0.0.1:{self.port}"
-        self.connections = 0
-        self.received: list[ET.Element] = []
-        threading.Thread(target=self._serve, daemon=True).start()
-
-    def _serve(self):
-        self.listener.settimeout(30.0)
-        try:
-            connection, _ = self.listener.accept()
-        except OSError:
-            return
-        self.connections += 1
-        with connection:
-            connection.sendall(DEFINITIONS.encode())
-            parser = ET.XMLPullParser(events=("end",))
-            parser.feed(b"<stream>")
-            connection.settimeout(30.0)
-            try:
-                while chunk := connection.recv(4096):
-                    parser.feed(chunk)
-                    for _, element in parser.read_events():
-                        if element.tag.startswith(("new", "getProperties")):
-                            self.received.append(element)
-                            self._answer(connection, element)
-            except OSError:
-                pass
-
-    def _answer(self, connection, element):
-        name = element.get("name")
-        if element.tag == "newNumberVector" and name == "EQUATORIAL_EOD_COORD":
-            state = "Busy"
-        elif element.tag == "newSwitchVector" and name == "TELESCOPE_ABORT_MOTION":
-            state = "Idle"
-        else:
-            return
-        connection.sendall(f'<setNumberVector device="{DEVICE}" name="EQUATORIAL_EOD_COORD" '
-                           f'state="{state}"><oneNumber name="RA">1.5</oneNumber>'
-                           f'<oneNumber name="DEC">-10.5</oneNumber></setNumberVector>'.encode())
-
-    def aborts(self) -> int:
-        return sum(1 for e in self.received if e.get("name") == "TELESCOPE_ABORT_MOTION")
-
-    def close(self):
-        self.listener.close()
 
 
 def run_cli(argv) -> int:
@@ -109,7 +38,8 @@ def run_cli(argv) -> int:
 
 @pytest.fixture
 def stuck():
-    peer = StuckMount()
+    """A mount that takes a slew (Busy) and never ends it; an abort makes it Idle."""
+    peer = ScriptedPeer(motion="stuck")
     yield peer
     peer.close()
 
@@ -156,7 +86,8 @@ def test_cli_slew_failure_after_motion_sends_abort_and_exits_5(stuck, tmp_path, 
 @pytest.mark.parametrize("option", [["--timeout", "inf"], ["--timeout", "1e300"],
                                     ["--timeout", "nan"], ["--timeout", "0"],
                                     ["--connect-timeout", "inf"], ["--max-residual", "-1"],
-                                    ["--tolerance", "nan"]])
+                                    ["--tolerance", "nan"], ["--track-minutes", "-1"],
+                                    ["--track-minutes", "inf"], ["--at-limit", "ignore"]])
 def test_mount_options_are_refused_before_any_connection(stuck, capsys, option):
     # The older `NAME --targets FILE` form, which the code before this check also took.
     code = run_cli(["mount", "slew", "Wick", "--targets", str(SAMPLES / "loma_candil_targets.csv"),

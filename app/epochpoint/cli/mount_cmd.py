@@ -12,7 +12,7 @@ import sys
 from datetime import datetime, timezone
 
 from ..mount.errors import ConnectionLost, InterlockRefused, MountError
-from ..mount.options import MAX_RESIDUAL_ARCSEC, MAX_WAIT_S
+from ..mount.options import MAX_RESIDUAL_ARCSEC, MAX_TRACK_S, MAX_WAIT_S
 from . import checks, common
 
 EXIT_REFUSED = 3
@@ -57,6 +57,15 @@ def add_parser(sub) -> None:
                       default=argparse.SUPPRESS, help=argparse.SUPPRESS)
     slew.add_argument("--push-site", action="store_true",
                       help="first send our site and clock to the device")
+    slew.add_argument("--track-minutes", default=10.0, metavar="MIN",
+                      type=checks.number(0.0, MAX_TRACK_S / 60.0, unit="min"),
+                      help="refuse unless the target stays allowed for this long after the "
+                           "slew ends (default 10; use the block's length); with --wait, "
+                           "then watch the tracking mount for as long")
+    slew.add_argument("--at-limit", choices=("stop-tracking", "abort"),
+                      default="stop-tracking",
+                      help="what the watch does before the tracked mount leaves the allowed "
+                           "region (default stop-tracking)")
 
     status = actions.add_parser("status", help="the mount's position, state, site and clock")
     _add_server_arguments(status)
@@ -107,6 +116,7 @@ def _open(args, connect_device: bool = True):
 def _slew(args) -> int:
     from ..io import read_targets
     from ..mount.telescope import checked_pointing, slew_to_target
+    from ..mount.track_watch import watch_track
 
     targets_path, name = _targets_and_name(args)
     targets = read_targets(targets_path)
@@ -119,14 +129,27 @@ def _slew(args) -> int:
             scope.push_site(site, notify=_say)
         # A failure once the motion was sent comes back with an abort sent and the words
         # "may still be moving" (slew_to_target does both).
+        token = scope.begin_command()
         try:
             report = slew_to_target(scope, targets, site, name, sync=args.sync,
                                     wait=args.wait, timeout_s=args.timeout,
-                                    tolerance_arcsec=args.max_residual, notify=_say)
+                                    tolerance_arcsec=args.max_residual,
+                                    track_s=args.track_minutes * 60.0, token=token,
+                                    notify=_say)
         except KeyboardInterrupt:
             _say("Interrupted: aborting the motion.")
             scope.abort()
             return 130
+        if args.wait and not args.sync and not report.aborted and report.final_state == "Ok" \
+                and args.track_minutes > 0.0:
+            _say(f"Watching the track for {args.track_minutes:g} min (Ctrl-C stops watching; "
+                 "the mount then tracks unwatched).")
+            try:
+                _say("Watch ended: " + watch_track(
+                    scope, targets, site, name, seconds=args.track_minutes * 60.0,
+                    at_limit=args.at_limit, token=token, notify=_say) + ".")
+            except KeyboardInterrupt:
+                _say("Stopped watching; the mount keeps tracking, unwatched.")
     if report.residual_arcsec is None:
         _say(f"Sent; not waiting for the {report.action} to end.")
         return 0

@@ -22,6 +22,7 @@ a millisecond for an hour sampled every second.
 from __future__ import annotations
 
 import numpy as np
+from astropy.time import TimeDelta
 
 from .constants import DEG_TO_RAD, RAD_TO_DEG
 from .context import AstrometryContext
@@ -101,7 +102,7 @@ def track_refusal(ra_apparent_deg: float, dec_apparent_deg: float, site: Site,
     ra_cirs = ra_apparent_deg + ctx.cirs_minus_tod_rad * RAD_TO_DEG
     place = observed_track(ra_cirs, dec_apparent_deg, ctx, offsets)
     # The Sun at both ends; the smaller separation holds for the whole track.
-    ends = ctx.time + np.array([start_s, end_s]) / 86400.0
+    ends = ctx.time + TimeDelta(np.array([start_s, end_s]), format="sec")
     sun = sun_separation_deg(site, ends[0], [ra_apparent_deg], [dec_apparent_deg])
     sun_end = sun_separation_deg(site, ends[1], [ra_apparent_deg], [dec_apparent_deg])
     sun_deg = np.full(offsets.shape, min(float(sun[0]), float(sun_end[0])))

@@ -16,6 +16,7 @@ never resumes a motion (mount.errors.ConnectionLost).
 """
 from __future__ import annotations
 
+import threading
 import time
 from datetime import datetime, timezone
 
@@ -26,7 +27,8 @@ from PySide6.QtWidgets import (QComboBox, QDialog, QDoubleSpinBox, QGridLayout,
                                QPushButton, QVBoxLayout, QWidget)
 
 from ...io.angles import format_dec_dms, format_ra_hms
-from ...mount import CAUTION, ConnectionLost, Telescope, pointing_for, slew_to_target
+from ...mount import (CAUTION, ConnectionLost, Telescope, pointing_for, slew_to_target,
+                      watch_track)
 from ...mount.telescope import FRAME_TEXT
 from .mount_jobs import JOIN_TIMEOUT_S, MountJob, one_line, open_mount, switch_device
 from .mount_text import ConfirmMotionDialog, confirmation_text, report_text
@@ -70,6 +72,10 @@ class MountPanel(QWidget):
         # Jobs may outlive the panel by a moment: never deliver to a deleted panel.
         self.destroyed.connect(lambda *_args, jobs=self._jobs: [j.drop() for j in jobs])
         self._confirm_serial: int | None = None  # a check a Slew/Sync press waits for
+        # After a slew, a watch stops tracking before the mount leaves the allowed region
+        # (mount.watch_track); set to end it (abort, new motion, disconnect, closing).
+        self._watch_stop = threading.Event()
+        self._watched = None  # (scope, targets, site, name, token) of the last slew
         self._closing = False
         self._moving_shown = False
         self._window_escape: QShortcut | None = None  # Esc anywhere in the window, in motion
@@ -449,6 +455,7 @@ class MountPanel(QWidget):
         if self.scope is None or self.is_moving:
             return
         scope, self.scope, self.lost_reason = self.scope, None, None
+        self._watch_stop.set()
         self.status_timer.stop()
         self._start("disconnect", scope.close)
         self._log(f"Disconnected from {scope.client.address}.")
@@ -461,6 +468,7 @@ class MountPanel(QWidget):
         if self.scope is None or self.lost_reason is not None:
             return
         self.lost_reason = reason
+        self._watch_stop.set()
         self.status_timer.stop()
         self._start("close lost connection", self.scope.client.close)
         text = (f"CONNECTION LOST to {self.scope.device} at {self.scope.client.address}: "
@@ -595,12 +603,17 @@ class MountPanel(QWidget):
             self._log("Nothing was sent: the connection, the site or the selection changed.")
             return
         name = pointing.name
+        # The command begins at the confirmation: an ABORT pressed from now on stops it.
+        token = scope.begin_command()
+        self._watch_stop.set()
+        self._watched = (scope, one, site, name, token)
         self.last_report = None
         self.report_label.setText(f"{what.capitalize()} of {name} in progress…")
         self._colour(self.report_label, "warning")
         job = self._start(what, slew_to_target, scope, one, site, name, sync=sync,
                           wait=True, timeout_s=self.timeout_spin.value(),
-                          tolerance_arcsec=self.tolerance_spin.value(), track=True)
+                          tolerance_arcsec=self.tolerance_spin.value(), token=token,
+                          track=True)
         self.motion_job = job
         job.done.connect(self._on_motion_done)
         job.failed.connect(self._on_motion_failed)
@@ -614,6 +627,20 @@ class MountPanel(QWidget):
                      report.within_tolerance is False else "ok")
         self.refresh_status()
         self._update_controls()
+        self._watch_track(report)
+
+    def _watch_track(self, report) -> None:
+        """Watch a finished slew's tracking while connected (mount.watch_track)."""
+        if report.action != "slew" or report.aborted or report.final_state != "Ok" or \
+                self._watched is None or self._watched[0] is not self.scope:
+            return
+        scope, one, site, name, token = self._watched
+        self._watch_stop = threading.Event()
+        self._log(f"Watching the track of {name}: tracking stops before it leaves the "
+                  "allowed region.")
+        job = self._start("watch", watch_track, scope, one, site, name, token=token,
+                          stop=self._watch_stop, track=True)
+        job.done.connect(lambda why: self._log(f"Watch of {name} ended: {why}."))
 
     def _on_motion_failed(self, err) -> None:
         self.motion_job = None
@@ -631,6 +658,9 @@ class MountPanel(QWidget):
                 self._log("Cannot send ABORT: the connection is lost. Stop the mount at the "
                           "mount.")
             return
+        # Latched here, on the GUI thread: a motion not yet sent will not be sent.
+        self.scope.latch_abort()
+        self._watch_stop.set()
         self._log("ABORT sent.")
         self.status_message.emit("Mount: ABORT sent")
         job = self._start("abort", self.scope.abort)
@@ -725,6 +755,7 @@ class MountPanel(QWidget):
         Returns True when every job ended within the timeout.
         """
         self._closing = True
+        self._watch_stop.set()
         for timer in (self.status_timer, self.check_timer, self.recheck_timer):
             timer.stop()
         for job in self._jobs:
