@@ -133,7 +133,11 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
     h0, state = ha_at_altitude(true_altitude_for_observed(limit, refa, refb, join, horizon),
                                geo.dec, geo.lat)
     transit, max_alt = _transit_and_peak(geo, span)
-    dec_ok = (geo.dec >= mount.dec_min) & (geo.dec <= mount.dec_max)
+    # Refraction moves the observed declination by at most about 0.6 deg (at the horizon):
+    # targets that far beyond a limit never enter; those near one are checked along the night
+    # in observed (refracted) declination, as the interlocks check it.
+    dec_ok = ((geo.dec >= mount.dec_min - DEC_REFRACTION_MARGIN_DEG)
+              & (geo.dec <= mount.dec_max + DEC_REFRACTION_MARGIN_DEG))
     checks = _SampledChecks(geo, site, constraints, span)
 
     reasons = np.full(n, "", dtype=object)
@@ -236,9 +240,15 @@ def _transit_and_peak(geo: _Geometry, span: list):
     return transit, np.max(peaks, axis=0)
 
 
+# Largest change refraction makes to a declination (horizontal refraction is about 34', and
+# the observed-place model extends to 1 deg below the horizon), with room to spare.
+DEC_REFRACTION_MARGIN_DEG = 1.0
+
+
 class _SampledChecks:
-    """The horizon mask, Sun avoidance and Moon separation, sampled for all targets at once
-    on one grid over the dark span and refined by vectorized bisection at each change."""
+    """The mount's declination limits (in observed, refracted declination), the horizon mask,
+    Sun avoidance and Moon separation, sampled for all targets at once on one grid over the
+    dark span and refined by vectorized bisection at each change."""
 
     def __init__(self, geo: _Geometry, site: Site, constraints: Constraints, span: list):
         self.geo, self.site, self.c = geo, site, constraints
@@ -263,8 +273,11 @@ class _SampledChecks:
         geo, n = self.geo, self.geo.ra.shape[0]
         t = np.linspace(self.span[0], self.span[1], 25)[None, :]
         target = _unit(geo.ra, geo.dec)[:, :, None]
+        mount = self.site.interlocks.mount
         needed = {"mask": np.full(n, self.mask is not None and
-                                  float(self.mask.altitude.max()) > limit)}
+                                  float(self.mask.altitude.max()) > limit),
+                  "dec": ((np.abs(geo.dec - mount.dec_min) < DEC_REFRACTION_MARGIN_DEG)
+                          | (np.abs(geo.dec - mount.dec_max) < DEC_REFRACTION_MARGIN_DEG))}
         sun_sep = geo.sky.separation_from("sun", target, t).min(axis=1)
         needed["sun"] = (self.sun_radius > 0.0) & (sun_sep < self.sun_radius + 1.0)
         if self.moon_on:
@@ -280,6 +293,10 @@ class _SampledChecks:
         if which == "mask":
             alt, az = altaz_from_ha(geo.ha(idx, t), geo.dec[idx], geo.lat)
             return alt >= np.interp(az, self.mask.azimuth, self.mask_true, period=360.0)
+        if which == "dec":
+            mount = self.site.interlocks.mount
+            dec_observed = observed_declination(*geo.observed_altaz(idx, t), geo.lat)
+            return (dec_observed >= mount.dec_min) & (dec_observed <= mount.dec_max)
         target = _unit(geo.ra[idx], geo.dec[idx])
         if which == "sun":
             return geo.sky.separation_from("sun", target, t) >= self.sun_radius
@@ -292,7 +309,8 @@ class _SampledChecks:
     def apply(self, windows: list, reasons: np.ndarray) -> None:
         """Cut every target's pieces by each check in turn, in place; record the reason of
         targets left with nothing."""
-        for which, reason in (("mask", "behind the horizon mask"),
+        for which, reason in (("dec", "outside the mount's declination limits"),
+                              ("mask", "behind the horizon mask"),
                               ("sun", "too near the Sun"), ("moon", "too near the Moon")):
             idx = np.array([i for i in np.flatnonzero(self.needed[which]) if windows[i]],
                            dtype=int)
@@ -366,6 +384,15 @@ class _SampledChecks:
             t_bad = np.where(passed, t_bad, mid)
         edge[inner] = t_good
         return edge
+
+
+def observed_declination(alt_deg, az_deg, lat_deg):
+    """Declination (deg) of an observed direction (altitude, azimuth N through E): the
+    spherical triangle pole-zenith-star, sin(dec) = sin(lat) sin(alt) + cos(lat) cos(alt)
+    cos(az) (Smart, Textbook on Spherical Astronomy, ch. II; common practice)."""
+    alt, az, lat = np.radians(alt_deg), np.radians(az_deg), np.radians(lat_deg)
+    sin_dec = np.sin(lat) * np.sin(alt) + np.cos(lat) * np.cos(alt) * np.cos(az)
+    return np.degrees(np.arcsin(np.clip(sin_dec, -1.0, 1.0)))
 
 
 def _unit(ra_deg, dec_deg):
