@@ -320,3 +320,18 @@ def test_push_site_sends_the_clock_to_the_millisecond(peers):
         # The device echoed our clock: it now agrees with ours to the millisecond.
         offset, doubt = scope.clock_offset()
     assert abs(offset) < 0.1 and doubt < 0.01
+
+
+def test_a_sync_never_says_the_mount_is_about_to_move(peers):
+    """A sync only tells the mount where it points; the motion caution is for slews (issue:
+    the caution once, and never on a sync)."""
+    site = night_site()
+    targets, _, _ = star_at(site, 60.0, 90.0)
+    for sync, expected in ((True, 0), (False, 1)):
+        peer = peers(definitions(time_utc=_utc(0.0, fraction=True)))
+        said = []
+        with Telescope.open(peer.address, timeout_s=5.0) as scope:
+            slew_to_target(scope, targets, site, "Star", sync=sync, wait=not sync,
+                           timeout_s=5.0, track_s=60.0, notify=said.append)
+        moving = [line for line in said if "about to move" in line]
+        assert len(moving) == expected, (sync, said)

@@ -644,7 +644,8 @@ def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
     token = scope.begin_command() if token is None else token
     motions_before = scope.motions
     pointing = _checked(scope, targets, site, name, sync, track_s, notify)
-    notify(CAUTION)
+    if not sync:  # a sync only tells the mount where it points: nothing moves
+        notify(CAUTION)
     try:
         return _point(scope, targets, site, name, pointing, sync=sync, wait=wait,
                       timeout_s=timeout_s, tolerance_arcsec=tolerance_arcsec, track_s=track_s,
