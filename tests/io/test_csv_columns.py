@@ -106,7 +106,9 @@ def _outcome(reader, path, data, skip: bool):
     return ("ok", got, list(targets.names()), skipped, [str(w.message) for w in caught])
 
 
-def test_column_reader_equals_row_reader_on_odd_files():
+def test_column_reader_equals_row_reader_on_odd_files(monkeypatch):
+    # These files are short: let the column reader take them, as it takes long files.
+    monkeypatch.setattr(csvtargets, "COLUMN_READER_LINES", 0)
     rng = random.Random(SEED)
     by_columns = 0
     for index in range(N_FILES):

@@ -23,8 +23,8 @@ def add_time_argument(parser) -> None:
                         help="ISO 8601 UTC instant (e.g. 2027-01-20T23:10:00Z) or 'now'")
 
 
-def add_site_arguments(parser) -> None:
-    parser.add_argument("--site", required=True, metavar="SITE",
+def add_site_arguments(parser, required: bool = True) -> None:
+    parser.add_argument("--site", required=required, metavar="SITE",
                         help="site file (TOML) or LAT,LON,HEIGHT in degrees (east-positive) and "
                              "metres; write --site=-24.6,-70.4,2635 for southern sites")
     parser.add_argument("--pressure", type=checks.number(), metavar="HPA",
@@ -146,5 +146,7 @@ def emit_chunks(chunks, args) -> None:
     column chunks) in a machine format to --output or standard output, a chunk at a time."""
     from ..io.resultstream import stream_result
 
-    stream_result(chunks, chunks.names, chunks.meta, args.output, args.format,
+    # JSON holds no meta: it is not made (a site's zone would be looked up for nothing).
+    meta = None if args.format == "json" else chunks.meta
+    stream_result(chunks, chunks.names, meta, args.output, args.format,
                   units=chunks.units, out=sys.stdout)

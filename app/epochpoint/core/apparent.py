@@ -25,29 +25,38 @@ def apply_parallax(u_bcrs: np.ndarray, parallax_mas: np.ndarray, observer_bary_a
     return normalize(p)
 
 
-def deflect_by_sun(p: np.ndarray, sun_to_observer_unit: np.ndarray, sun_distance_au: float):
-    """Light deflection by the Sun for stars at infinity (SOFA ldsun, which calls ld).
+def deflect_by_sun(p: np.ndarray, sun_to_observer_unit: np.ndarray, sun_distance_au: float,
+                   sun_to_source_unit: np.ndarray | None = None):
+    """Light deflection by the Sun (SOFA ld): for stars at infinity q = p (as SOFA ldsun);
+    for a source at a finite distance, `sun_to_source_unit` is q, the Sun-to-source direction.
 
     The deflection limiter near the Sun's centre follows ldsun: dlim = 1e-6 / max(em^2, 1).
+    One observer (e a 3-vector) or one per direction (e (3, n), em (n,)).
     """
-    e = sun_to_observer_unit
+    e = np.reshape(sun_to_observer_unit, (3, -1))
     em = sun_distance_au
-    dlim = 1e-6 / max(em * em, 1.0)
-    # q = p for a source at infinity; q . (q + e) = 1 + p . e
-    q_dot_qpe = np.maximum(1.0 + dot(p, e), dlim)
-    w = SUN_SCHWARZSCHILD_AU / em / q_dot_qpe
-    # p x (e x p) = e - (p . e) p
-    p_dot_e = dot(p, e)
-    return p + w * (e[:, None] - p_dot_e * p)
+    dlim = 1e-6 / np.maximum(em * em, 1.0)
+    if sun_to_source_unit is None:
+        # q = p for a source at infinity; q . (q + e) = 1 + p . e
+        q_dot_qpe = np.maximum(1.0 + dot(p, e), dlim)
+        w = SUN_SCHWARZSCHILD_AU / em / q_dot_qpe
+        # p x (e x p) = e - (p . e) p
+        p_dot_e = dot(p, e)
+        return p + w * (e - p_dot_e * p)
+    q = sun_to_source_unit
+    w = SUN_SCHWARZSCHILD_AU / em / np.maximum(1.0 + dot(q, e), dlim)
+    # p x (e x q) = e (p . q) - q (p . e)
+    return p + w * (e * dot(p, q) - q * dot(p, e))
 
 
 def aberrate(p: np.ndarray, velocity_c: np.ndarray, sun_distance_au: float,
              lorentz_inverse: float):
     """Relativistic aberration for an observer moving at velocity_c (SOFA ab).
 
-    Includes the first-order gravitational term of the Sun (SOFA ab's w2 term).
+    Includes the first-order gravitational term of the Sun (SOFA ab's w2 term). One observer
+    (velocity a 3-vector) or one per direction (velocity (3, n), the scalars (n,)).
     """
-    v = velocity_c[:, None]
+    v = np.reshape(velocity_c, (3, -1))
     p_dot_v = dot(p, v)
     w1 = 1.0 + p_dot_v / (1.0 + lorentz_inverse)
     w2 = SUN_SCHWARZSCHILD_AU / sun_distance_au

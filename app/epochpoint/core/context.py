@@ -21,8 +21,8 @@ from dataclasses import dataclass
 import erfa
 import numpy as np
 from astropy.time import Time
-from astropy.utils import iers
 
+from . import earth_orientation
 from .constants import C_AU_PER_DAY, DEG_TO_RAD
 from .refraction import density_factor, low_altitude_join_factor
 from .site import Site
@@ -77,9 +77,8 @@ class AstrometryContext:
 
 def _polar_motion(t: Time) -> tuple[float, float]:
     """Polar motion x_p, y_p (rad) from the IERS table; held at the table's end beyond it."""
-    table = iers.earth_orientation_table.get()
-    xp, yp = table.pm_xy(t, return_status=False)
-    return float(xp.to_value("rad")), float(yp.to_value("rad"))
+    xp, yp = earth_orientation.polar_motion_rad(t)
+    return float(xp), float(yp)
 
 
 def _site_context(site: Site, tt, era_rad: float, gast_rad: float, xp: float, yp: float):

@@ -9,9 +9,11 @@ from __future__ import annotations
 import os
 from collections import deque
 from concurrent.futures import ThreadPoolExecutor
+from functools import cached_property
 
 import numpy as np
 
+from . import kernels
 from .columns import ColumnTable
 from .apparent import geocentric_direction, rotate
 from .constants import RAD_TO_ARCSEC, RAD_TO_DEG
@@ -84,8 +86,11 @@ class PositionChunks:
     """
 
     def __init__(self, targets: Targets, site: Site | None, when, *, ledger: bool = False,
-                 context: AstrometryContext | None = None, chunk_size: int = CHUNK_SIZE):
+                 context: AstrometryContext | None = None, chunk_size: int = CHUNK_SIZE,
+                 engine: str | None = None):
         self.targets, self.ledger, self.chunk_size = targets, ledger, max(1, int(chunk_size))
+        # The compiled chain or the numpy reference path (kernels.use_kernel).
+        self.use_kernel = kernels.use_kernel(len(targets), engine, ledger=ledger)
         self.context = ctx = context if context is not None else make_context(when, site)
         self.computed = list(BASE_COLUMNS)
         if ctx.site is not None:
@@ -96,10 +101,15 @@ class PositionChunks:
         self.names = ["name"] + self.computed
         if targets.has_errors:
             self.names += list(ELLIPSE_COLUMNS)
-        self.meta = _context_meta(ctx)
-        # Targets without a known distance get no annual parallax (ledger_parallax NaN).
-        self.meta["targets_distance_unknown"] = int(np.count_nonzero(targets.distance_unknown))
         self.units = {k: v for k, v in COLUMN_UNITS.items() if k in self.names}
+
+    @cached_property
+    def meta(self) -> dict:
+        """The context's meta, made when first read (a site's zone may have to be found)."""
+        meta = _context_meta(self.context)
+        # Targets without a known distance get no annual parallax (ledger_parallax NaN).
+        meta["targets_distance_unknown"] = int(np.count_nonzero(self.targets.distance_unknown))
+        return meta
 
     def spans(self) -> list:
         n = len(self.targets)
@@ -110,8 +120,11 @@ class PositionChunks:
         """Every column for the targets in `rows` (a slice)."""
         part = self.targets[rows]
         out = {"name": part.names()}
-        out.update({c: np.empty(len(part)) for c in self.computed})
-        _fill_chunk(part, self.context, out, slice(None), ledger=self.ledger)
+        if self.use_kernel:
+            out.update(kernels.chain_columns(part, self.context))
+        else:
+            out.update({c: np.empty(len(part)) for c in self.computed})
+            _fill_chunk(part, self.context, out, slice(None), ledger=self.ledger)
         if part.has_errors:
             out.update(error_ellipse_at(part, self.context.epoch_jyear))
         return out
@@ -133,31 +146,56 @@ class PositionChunks:
 
 def position_chunks(targets: Targets, site: Site | None, when, *, ledger: bool = False,
                     context: AstrometryContext | None = None,
-                    chunk_size: int = CHUNK_SIZE) -> PositionChunks:
+                    chunk_size: int = CHUNK_SIZE, engine: str | None = None) -> PositionChunks:
     """The positions of `positions()`, as an iterable of column chunks (see PositionChunks)."""
     return PositionChunks(targets, site, when, ledger=ledger, context=context,
-                          chunk_size=chunk_size)
+                          chunk_size=chunk_size, engine=engine)
 
 
 def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False,
-              context: AstrometryContext | None = None) -> Positions:
+              context: AstrometryContext | None = None, engine: str | None = None) -> Positions:
     """Propagated, apparent and (with a site) observed places of all targets at one instant.
 
     `when` is an ISO 8601 UTC string, 'now' or an astropy Time. Without a site only the
     propagated and apparent columns are computed. The chunks of `position_chunks` are
-    gathered into whole columns.
+    gathered into whole columns. `engine`: 'auto' (default), 'numpy' (the reference path) or
+    'kernel' (the compiled chain); see kernels.py and the EPOCHPOINT_ENGINE variable.
     """
-    chunks = position_chunks(targets, site, when, ledger=ledger, context=context)
+    chunks = position_chunks(targets, site, when, ledger=ledger, context=context,
+                             engine=engine)
     n = len(targets)
     out = {"name": targets.names}  # made when first read
-    out.update({c: np.empty(n, dtype=bool if c == "error_lower_bound" else float)
-                for c in chunks.names[1:]})
-    for rows, part in zip(chunks.spans(), chunks):
-        for c in chunks.names[1:]:
-            out[c][rows] = part[c]
+    if chunks.use_kernel and not targets.has_errors:
+        # The compiled chain in one parallel pass over all targets, straight into the columns.
+        out.update(kernels.chain_columns(targets, chunks.context))
+    else:
+        out.update({c: np.empty(n, dtype=bool if c == "error_lower_bound" else float)
+                    for c in chunks.names[1:]})
+        for rows, part in zip(chunks.spans(), chunks):
+            for c in chunks.names[1:]:
+                out[c][rows] = part[c]
+    body_warnings = _add_body_rows(out, targets, chunks.context)
     result = Positions(out, chunks.context)
     result.meta.update(chunks.meta)
+    if "distance_au" in out:
+        from .bodies.columns import BODY_UNITS
+        result.units.update(BODY_UNITS)
+    if body_warnings:
+        result.meta["body_warnings"] = body_warnings
     return result
+
+
+def _add_body_rows(out: dict, targets: Targets, ctx: AstrometryContext) -> list:
+    """Solar-system rows (a `body` or element columns, core/bodies/) replace their placeholder
+    star columns and add the body columns; DE421 is loaded only when such a row is present."""
+    if not any(k.strip().lower() in _BODY_KEYS for k in targets.extra):
+        return []
+    from .bodies.columns import fill_body_rows
+    return fill_body_rows(out, targets, ctx)
+
+
+_BODY_KEYS = {"body", "semimajor_axis", "perihelion_distance", "eccentricity",
+              "perihelion_time", "mean_anomaly"}
 
 
 def _store_radec(out: dict, rows: slice, prefix: str, p: np.ndarray):

@@ -36,6 +36,27 @@ def _is_zone(name) -> bool:
     return True
 
 
+class _ZoneFoundWhenRead:
+    """The `timezone` field: a zone left out (None) is found from the coordinates the first
+    time it is read, not when the Site is made (timezonefinder takes about 0.4 s to load,
+    and most computations never show a local time)."""
+
+    def __set_name__(self, owner, name):
+        self.stored = "_" + name
+
+    def __get__(self, site, owner=None):
+        if site is None:
+            return None  # the field's default
+        zone = site.__dict__.get(self.stored)
+        if zone is None:
+            zone = zone_at(site.latitude, site.longitude)
+            site.__dict__[self.stored] = zone
+        return zone
+
+    def __set__(self, site, value):
+        site.__dict__[self.stored] = value
+
+
 @dataclass(frozen=True)
 class Site:
     """A geodetic site (WGS84) with its default weather.
@@ -57,7 +78,7 @@ class Site:
     humidity: float = 0.5
     wavelength: float = 0.55
     name: str = ""
-    timezone: str | None = None
+    timezone: str | None = _ZoneFoundWhenRead()
     # Horizon mask, mount limits and Sun avoidance (on by default).
     interlocks: Interlocks = field(default_factory=Interlocks)
     # True when the zone was found from the coordinates rather than given.
@@ -87,8 +108,9 @@ class Site:
                 raise SiteError(field_name, f"{getattr(self, field_name)!r} {message}")
         if not isinstance(self.interlocks, Interlocks):
             raise SiteError("interlocks", "must be an Interlocks")
-        if self.timezone is None or not str(self.timezone).strip():
-            object.__setattr__(self, "timezone", zone_at(self.latitude, self.longitude))
+        given = self.__dict__.get("_timezone")
+        if given is None or not str(given).strip():
+            object.__setattr__(self, "timezone", None)  # found when first read
             object.__setattr__(self, "timezone_from_coordinates", True)
         elif not _is_zone(self.timezone):
             raise SiteError("timezone", f"{self.timezone!r} is not an IANA time zone name "
@@ -110,4 +132,5 @@ class Site:
         changes = {k: v for k, v in (("pressure", pressure), ("temperature", temperature),
                                      ("humidity", humidity), ("wavelength", wavelength))
                    if v is not None}
-        return replace(self, **changes)
+        # A zone not looked up yet stays so (None: found from the coordinates when read).
+        return replace(self, timezone=self.__dict__.get("_timezone"), **changes)

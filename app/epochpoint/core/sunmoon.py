@@ -30,6 +30,7 @@ import erfa
 import numpy as np
 from astropy.time import Time
 
+from . import earth_orientation
 from .constants import AU_M, C_AU_PER_DAY, DEG_TO_RAD, RAD_TO_DEG
 from .site import Site
 from .timescale import parse_time, quiet_erfa
@@ -121,7 +122,7 @@ def _observer(site: Site, eph: _Ephemeris):
     The equation of the origins (ERA - GST) turns CIRS right ascension into right ascension
     of date: ra_date = ra_cirs - eo.
     """
-    ut1 = eph.t.ut1
+    ut1 = earth_orientation.with_ut1_utc(eph.t).ut1
     rnpb = erfa.pnm00b(*eph.tt)
     x, y = erfa.bpn2xy(rnpb)
     s = erfa.s00(*eph.tt, x, y)

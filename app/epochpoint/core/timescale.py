@@ -1,7 +1,8 @@
 """Instants, time scales and the Earth-orientation table, all offline.
 
 The IERS Bulletin A table (finals2000A) shipped by the astropy-iers-data package supplies
-UT1-UTC and polar motion. Nothing is ever downloaded: when an instant lies beyond the table's
+UT1-UTC and polar motion, read from a binary cache of it (earth_orientation.py,
+iers_cache.py) with astropy's own interpolation. Nothing is ever downloaded: when an instant lies beyond the table's
 predictions, long after its last measurement, or before its first entry (1973), a
 `StaleEarthOrientation` warning says so and the computation goes on with astropy's
 extrapolation (UT1-UTC held at the nearest value, polar motion from its long-term mean).
@@ -19,17 +20,17 @@ import functools
 import re
 import warnings
 from dataclasses import dataclass
-from functools import lru_cache
 
 import erfa
 import numpy as np
 from astropy.time import Time
-from astropy.utils import iers
 
-# Offline for good: never download, never refuse an old table.
-iers.conf.auto_download = False
-iers.conf.auto_max_age = None
-iers.conf.iers_degraded_accuracy = "ignore"
+from . import earth_orientation
+
+# Offline for good: astropy never downloads and never refuses an old table, and it takes
+# the leap seconds from the cache (earth_orientation.py) instead of parsing the list again.
+earth_orientation.keep_astropy_offline()
+earth_orientation.install_leap_seconds()
 
 # An instant this long after the table's last measured value counts as stale (UT1 prediction
 # errors grow to ~10 ms, 0.15" at the equator, after about 90 days: IERS Bulletin A accuracy note).
@@ -70,25 +71,15 @@ def quiet_erfa(func):
     return wrapper
 
 
-@lru_cache(maxsize=1)
-def _table():
-    return iers.IERS_Auto.open()
-
-
-@lru_cache(maxsize=1)
 def _table_limits() -> tuple[float, float]:
     """(MJD of the last measured value, MJD of the last predicted value)."""
-    table = _table()
-    mjd = np.asarray(table["MJD"].to_value("d"))
-    predicted = np.asarray(table["UT1Flag"]) == "P"
-    last_measured = mjd[~predicted][-1] if (~predicted).any() else mjd[0]
-    return float(last_measured), float(mjd[-1])
+    table = earth_orientation.table()
+    return table.last_measured_mjd, table.predictions_end_mjd
 
 
-@lru_cache(maxsize=1)
 def _table_start() -> float:
     """MJD of the table's first entry."""
-    return float(np.asarray(_table()["MJD"].to_value("d"))[0])
+    return earth_orientation.table().first_mjd
 
 
 @quiet_erfa
@@ -216,5 +207,7 @@ def iso_z(t: Time) -> str | list:
 @quiet_erfa
 def jd_pair(t: Time, scale: str) -> tuple[float, float]:
     """The two-part Julian date of t in the given scale (tt, tdb, ut1, utc)."""
+    if scale == "ut1":  # UT1-UTC from the cached table, as astropy would interpolate it
+        t = earth_orientation.with_ut1_utc(t)
     converted = getattr(t, scale)
     return float(converted.jd1), float(converted.jd2)

@@ -7,7 +7,7 @@ from __future__ import annotations
 import os
 
 from PySide6.QtGui import QKeySequence
-from PySide6.QtWidgets import QFileDialog, QMessageBox
+from PySide6.QtWidgets import QDialog, QFileDialog, QMessageBox
 
 from epochpoint.io import read_targets
 from epochpoint.io.errors import InputError
@@ -15,8 +15,10 @@ from epochpoint.io.planfile import write_plan_file
 
 from .document import empty_plan
 from .loading import PLAN_FILE_FILTER, TARGET_FILE_FILTER, is_plan_file, load_path
+from .site_guard import site_edits_settled
 from .recovery import (add_recent_file, newer_recovery, recent_files, recovery_path,
                        remove_recent_file, salvage_recovery)
+from .refused_rows import RefusedRowsDialog, read_good_rows
 
 
 class FileActions:
@@ -113,13 +115,36 @@ class FileActions:
             self.import_path(path)
 
     def import_path(self, path: str) -> bool:
+        """Import a target list; with bad rows, offer the good ones (refused_rows.py)."""
+        refused = []
         try:
-            self.document.import_targets(read_targets(path), path)
-        except (InputError, ValueError, OSError) as err:
+            targets = read_targets(path)
+        except InputError as err:
+            partial = read_good_rows(path) if err.line is not None else None
+            if partial is None or not self.interactive:
+                self.show_error("Cannot import", one_line(err))
+                return False
+            targets, refused = partial
+            if not self.confirm_good_rows(path, refused, len(targets)):
+                self.show_message(f"Nothing imported: {len(refused)} row(s) of {path} cannot "
+                                  "be read.", 15000)
+                return False
+        except (ValueError, OSError) as err:
             self.show_error("Cannot import", one_line(err))
             return False
-        self.show_message(f"Imported targets from {path}")
+        try:
+            self.document.import_targets(targets, path)
+        except (InputError, ValueError) as err:
+            self.show_error("Cannot import", one_line(err))
+            return False
+        left_out = f"; {len(refused)} unreadable row(s) left out" if refused else ""
+        self.show_message(f"Imported {len(targets)} targets from {path}{left_out}", 15000)
         return True
+
+    def confirm_good_rows(self, path: str, refused: list, good_count: int) -> bool:
+        """Ask whether to import the good rows, listing the refused ones."""
+        dialog = RefusedRowsDialog(path, refused, good_count, self)
+        return dialog.exec() == QDialog.DialogCode.Accepted
 
     def save(self) -> bool:
         path = self.document.path
@@ -139,6 +164,8 @@ class FileActions:
         return self.save_to(path)
 
     def save_to(self, path: str) -> bool:
+        if not site_edits_settled(self, "save"):
+            return False  # the Site & limits form holds edits it could not apply
         try:
             write_plan_file(path, self.document.to_plan_document())
         except (OSError, ValueError) as err:
@@ -190,6 +217,8 @@ class FileActions:
 
     def maybe_save(self) -> bool:
         """True when it is fine to drop the document (saved, discarded or clean)."""
+        if self.interactive and not site_edits_settled(self, "close the plan"):
+            return False
         if not self.document.dirty or not self.interactive:
             return True
         answer = QMessageBox.question(

@@ -62,6 +62,9 @@ class MainWindow(FileActions, QMainWindow):
         self.selected: int | None = None
         self._plan_task = self._now_task = None
         self._plan_generation = -1
+        # Rows are numbered anew when targets are added or removed: a plan is drawn with the
+        # selection, and its clicks are taken, only while it covers the rows as they are.
+        self._rows_version = self._plan_rows_version = 0
         self.instant_choice = "auto"  # "auto", "now" or a chosen ISO instant (module docstring)
         self._instant_key = None      # the night date and site the choice was made for
         self._sky_instant = None      # the shown instant last given to the sky dome
@@ -149,6 +152,9 @@ class MainWindow(FileActions, QMainWindow):
         delete.setContext(Qt.ShortcutContext.WidgetWithChildrenShortcut)
         delete.activated.connect(self.remove_selected)
         self.model.edit_rejected.connect(self._on_edit_rejected)
+        # Results that came while a cell was being typed in are sorted in once it closes.
+        self.table.itemDelegate().closeEditor.connect(
+            self.model.release_editor, Qt.ConnectionType.QueuedConnection)
         self.count_label = QLabel()
         self.count_label.setProperty("role", "fieldLabel")
         left = QWidget()
@@ -173,8 +179,9 @@ class MainWindow(FileActions, QMainWindow):
                               (self.drift, "D&rift"), (self.site_editor, "Site && &limits"),
                               (self.mount_panel, "M&ount")):
             self.tabs.addTab(widget, title)
-        for panel in (self.tonight, self.skydome, self.drift):
-            panel.target_clicked.connect(self.select_target)
+        self.drift.target_clicked.connect(self.select_target)  # its own copy of the rows
+        for panel in (self.tonight, self.skydome):
+            panel.target_clicked.connect(self._on_chart_target)
         self.tonight.instant_clicked.connect(self.set_shown_instant)
         self.site_editor.site_edited.connect(self.document.replace_site)
         self.drift.tolerance_changed.connect(self._on_tolerance_edited)
@@ -289,6 +296,7 @@ class MainWindow(FileActions, QMainWindow):
             self.night_bar.set_night(self.document.night)
 
     def _on_rows_reset(self) -> None:
+        self._rows_version += 1
         self._set_selected(None)
         self._update_count()
         self._targets_for_drift = None
@@ -330,12 +338,23 @@ class MainWindow(FileActions, QMainWindow):
         if doc_row == self.selected:
             return
         self.selected = doc_row
-        for panel in (self.tonight, self.skydome, self.drift, self.mount_panel):
+        for panel in (self.drift, self.mount_panel):
             panel.set_selected(doc_row)
+        for panel in (self.tonight, self.skydome):
+            panel.set_selected(doc_row if self._plan_covers_rows() else None)
         if doc_row is None:
             self.ledger.set_row(None)
         else:
             self.refresh_now()
+
+    def _plan_covers_rows(self) -> bool:
+        """Whether the shown plan numbers its targets as the document's rows are now."""
+        return self.plan is not None and self._plan_rows_version == self._rows_version
+
+    def _on_chart_target(self, plan_index: int) -> None:
+        """A click on a chart's target: taken only while the chart's plan covers the rows."""
+        if self._plan_covers_rows():
+            self.select_target(plan_index)
 
     def select_target(self, doc_row: int) -> None:
         """Select a target by its document row (from a panel click): shown and current."""
@@ -420,6 +439,7 @@ class MainWindow(FileActions, QMainWindow):
         if generation != self.document.generation:
             return  # the document changed meanwhile; a newer run is on its way
         self.plan, self._plan_generation = plan, generation
+        self._plan_rows_version = self._rows_version
         if plan is not None:
             self.document.schedule = schedule_entries(plan)
         for panel in (self.tonight, self.skydome):
@@ -468,7 +488,15 @@ class MainWindow(FileActions, QMainWindow):
         if plan is not None and self._plan_generation == self.document.generation:
             tonight = plan.windows.reason
         self.model.set_computed(Computed(alt_now=now.alt, refused_now=now.refused,
-                                         tonight=tonight, drift=now.drift))
+                                         tonight=tonight, drift=now.drift),
+                                keep=self._open_editor_cell())
+
+    def _open_editor_cell(self):
+        """(model row, column) of the target table's open cell editor, or None."""
+        if self.table.state() != QAbstractItemView.State.EditingState:
+            return None
+        index = self.proxy.mapToSource(self.table.currentIndex())
+        return (index.row(), index.column()) if index.isValid() else None
 
     def _on_failed(self, what: str, message: str) -> None:
         self.show_message(f"{what} failed: {message}", 10000)

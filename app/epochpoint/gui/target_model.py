@@ -3,7 +3,8 @@
 Fast for long lists: data() only indexes into per-column lists of display strings, each built
 once (for the whole column, lazily, when first shown) and rebuilt only for what changed. There
 are no per-row widgets. Sorting is done here with numpy (one argsort, whatever the length),
-not by the proxy comparing rows pair by pair in Python; the proxy only filters.
+not by the proxy comparing rows pair by pair in Python; the proxy only filters. The values
+sorted on are the ones SORT_ROLE gives (gui.sorting), unknown ones last in both directions.
 
 Right ascension shows as sexagesimal hours and accepts degrees or hh:mm:ss; declination shows
 as +dd:mm:ss and accepts degrees too. An edit is parsed and checked with the same rules as a
@@ -30,6 +31,7 @@ from epochpoint.io.angles import format_dec_dms, format_ra_hms, parse_dec, parse
 from epochpoint.io.epochs import parse_epoch
 from epochpoint.io.planningfields import PARSERS
 
+from .sorting import SORT_ROLE, sort_value
 from .themes import colours
 
 FILTER_ROLE = Qt.ItemDataRole.UserRole + 1
@@ -211,6 +213,7 @@ class TargetTableModel(QAbstractTableModel):
         self._icons: dict = {}
         self._brushes: dict = {}
         self._sort_column, self._sort_order = -1, Qt.SortOrder.AscendingOrder
+        self._sort_held = False  # a re-sort waiting for an open cell editor (set_computed)
         self._order = np.arange(document.row_count())
         self._position = self._order.copy()
         self.set_theme("light")
@@ -279,6 +282,8 @@ class TargetTableModel(QAbstractTableModel):
             return self._tooltip(key, row)
         if role == FILTER_ROLE:
             return self._filter_list()[row]
+        if role == SORT_ROLE:
+            return sort_value(self._sort_keys_cell(key, row))
         if role == DOC_ROW_ROLE:
             return int(row)
         return None
@@ -313,7 +318,16 @@ class TargetTableModel(QAbstractTableModel):
             return np.array([s.lower() for s in self._display_list(key)], dtype=str)
         return np.asarray(self.document.column(key), dtype=float)
 
+    def _sort_keys_cell(self, key: str, row: int):
+        """One cell's entry of _sort_keys (the value SORT_ROLE gives, for any other view)."""
+        if key in ("alt_now", "drift"):
+            return None if self.computed is None else float(getattr(self.computed, key)[row])
+        if key in ("pointing", "tonight", "name", "notes"):
+            return self._display_list(key)[row].lower()
+        return float(self.document.value(row, key))
+
     def _apply_sort(self) -> None:
+        self._sort_held = False
         n = self.document.row_count()
         if not 0 <= self._sort_column < len(COLUMNS) or n == 0:
             new_order = np.arange(n)
@@ -337,18 +351,47 @@ class TargetTableModel(QAbstractTableModel):
         self.layoutChanged.emit()
 
     # ------------------------------------------------------------------ computed columns
-    def set_computed(self, computed: Computed | None) -> None:
-        """Show a recompute's results (ignored unless they have one value per row)."""
+    def set_computed(self, computed: Computed | None, keep=None) -> None:
+        """Show a recompute's results (ignored unless they have one value per row).
+
+        `keep` is the (model row, column) of a cell whose editor is open, or None. The view
+        resets an open editor to the model's value on any dataChanged that covers its cell,
+        so that cell is left out; and a re-sort, which would move the row being typed in,
+        waits for release_editor()."""
         if computed is not None and len(computed.alt_now) != self.document.row_count():
             computed = None
         self.computed = computed
         for key in ("alt_now", "pointing", "tonight", "drift"):
             self._display.pop(key, None)
-        if self.rowCount():
-            self.dataChanged.emit(self.index(0, 0),
-                                  self.index(self.rowCount() - 1, len(COLUMNS) - 1))
-            if 0 <= self._sort_column < len(COLUMNS) and COLUMNS[self._sort_column].computed:
+        if not self.rowCount():
+            return
+        # What a result changes: the computed columns, and the name's marker and tooltip.
+        computed_columns = [i for i, spec in enumerate(COLUMNS) if spec.computed]
+        self._changed_around(min(computed_columns), max(computed_columns), keep)
+        self._changed_around(COLUMN_INDEX["name"], COLUMN_INDEX["name"], keep)
+        if 0 <= self._sort_column < len(COLUMNS) and COLUMNS[self._sort_column].computed:
+            if keep is None:
                 self._apply_sort()
+            else:
+                self._sort_held = True
+
+    def release_editor(self) -> None:
+        """The cell editor closed: apply a re-sort that waited for it (set_computed)."""
+        if self._sort_held:
+            self._sort_held = False
+            self._apply_sort()
+
+    def _changed_around(self, first: int, last: int, keep) -> None:
+        """dataChanged for every row of columns first..last except the cell `keep`."""
+        n = self.rowCount()
+        if keep is None or not first <= keep[1] <= last:
+            self.dataChanged.emit(self.index(0, first), self.index(n - 1, last))
+            return
+        row, column = keep
+        for r0, c0, r1, c1 in ((0, first, row - 1, last), (row, first, row, column - 1),
+                               (row, column + 1, row, last), (row + 1, first, n - 1, last)):
+            if r0 <= r1 and c0 <= c1:
+                self.dataChanged.emit(self.index(r0, c0), self.index(r1, c1))
 
     def refusal(self, doc_row: int) -> str:
         """Why pointing at the target is refused now ('' if allowed or not yet computed)."""

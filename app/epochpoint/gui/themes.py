@@ -5,15 +5,20 @@ no blue or white anywhere (red light barely affects the rods' dark adaptation: c
 practice at observatories). Every colour the shell and the panels use comes from here:
 `apply_theme` sets the Qt palette and style sheet, `colours` gives the named colours for
 markers, and `chart_style` the few colours matplotlib charts need (charts/chart_style.py
-derives the rest). The chosen theme is remembered in QSettings under "view/theme".
+derives the rest). Icons and check indicators, which the palette does not reach, are redrawn
+by the application's style (gui/night_style.py). The chosen theme is remembered in QSettings
+under "view/theme".
 """
 from __future__ import annotations
 
 from PySide6.QtGui import QColor, QPalette
 from PySide6.QtWidgets import QApplication
 
+from .night_style import ThemedStyle, red_icon
+
 THEMES = ("light", "night")
 SETTINGS_KEY = "view/theme"
+_STYLE: ThemedStyle | None = None  # the application's style, kept alive from Python
 
 # Named colours per theme. Night colours keep green and blue at or below 0x40.
 _COLOURS = {
@@ -103,14 +108,29 @@ def apply_theme(app: QApplication, theme: str) -> str:
     theme = theme if theme in THEMES else "light"
     if app.property("epochpointTheme") == theme:
         return theme
+    global _STYLE
     if not app.property("epochpointFusion"):
-        app.setStyle("Fusion")  # the one built-in style that follows the palette everywhere
+        # Fusion is the one built-in style that follows the palette everywhere; the proxy
+        # adds what the palette cannot reach (gui/night_style.py).
+        _STYLE = ThemedStyle()
+        app.setStyle(_STYLE)
         app.setProperty("epochpointFusion", True)
     c = colours(theme)
+    if _STYLE is not None:
+        _STYLE.night = c if theme == "night" else None
+    _theme_window_icon(app, c if theme == "night" else None)
     app.setProperty("epochpointTheme", theme)  # set first: panels read it on the change
     app.setPalette(_palette(c))
     app.setStyleSheet(_style_sheet(c))
     return theme
+
+
+def _theme_window_icon(app: QApplication, night: dict | None) -> None:
+    """The app's own icon (also the About box's picture) in red at night, as made otherwise."""
+    if app.property("epochpointIcon") is None:
+        app.setProperty("epochpointIcon", app.windowIcon())
+    icon = app.property("epochpointIcon")
+    app.setWindowIcon(red_icon(icon, QColor(night["text"])) if night else icon)
 
 
 def current_theme(app: QApplication | None = None) -> str:

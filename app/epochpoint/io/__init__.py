@@ -22,15 +22,23 @@ Results::
 Angles and epochs: parse_ra, parse_dec, parse_epoch; format_ra_hms, format_dec_dms,
 format_hours, sidereal_time_text. Atomic saves: atomic_write_bytes, atomic_write_text.
 """
-from .angles import (format_dec_dms, format_hours, format_ra_hms, parse_dec, parse_ra,
-                     sidereal_time_text)
-from .atomic import atomic_write_bytes, atomic_write_text
-from .epochs import parse_epoch
+import importlib
+
 from .errors import InputError, SkippedRowWarning, TargetValueWarning
-from .peopletable import format_people_table
-from .results import RESULT_FORMATS, format_result, write_result
-from .sitefile import parse_site_spec, read_site, read_site_file
-from .targetfile import TARGET_FORMATS, read_targets, target_format, write_targets
+
+# Each name is imported from its module when first used, so that a command pays only for the
+# file formats it touches (the table and Arrow readers cost a few tenths of a second).
+_HOMES = {
+    "angles": ("format_dec_dms", "format_hours", "format_ra_hms", "parse_dec", "parse_ra",
+               "sidereal_time_text"),
+    "atomic": ("atomic_write_bytes", "atomic_write_text"),
+    "epochs": ("parse_epoch",),
+    "peopletable": ("format_people_table",),
+    "results": ("RESULT_FORMATS", "format_result", "write_result"),
+    "sitefile": ("parse_site_spec", "read_site", "read_site_file"),
+    "targetfile": ("TARGET_FORMATS", "read_targets", "target_format", "write_targets"),
+}
+_HOME_OF = {name: module for module, names in _HOMES.items() for name in names}
 
 __all__ = [
     "InputError", "SkippedRowWarning", "TargetValueWarning",
@@ -41,3 +49,16 @@ __all__ = [
     "sidereal_time_text",
     "atomic_write_bytes", "atomic_write_text",
 ]
+
+
+def __getattr__(name):
+    module = _HOME_OF.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return sorted(set(globals()) | set(_HOME_OF))

@@ -26,24 +26,26 @@ from __future__ import annotations
 
 import codecs
 import csv
+import functools
 import re
 
 import numpy as np
-import pyarrow as pa
-import pyarrow.compute as pc
-import pyarrow.csv as pacsv
 
 # Bytes scanned per numpy pass (small temporaries, reused rather than mapped anew).
 SCAN_BYTES = 1 << 20
 # Bytes of records pyarrow parses per block (a few blocks are in memory at once).
 BLOCK_BYTES = 1 << 22
 _UTF8_BOM = b"\xef\xbb\xbf"
-# Every character str.strip() removes, from Python itself.
-PYTHON_WHITESPACE = "".join(chr(c) for c in range(0x110000) if chr(c).isspace())
 # Per first byte of a line: True where Python must classify the line (whitespace, non-ASCII).
 _UNSURE_FIRST_BYTE = np.array([b >= 0x80 or chr(b).isspace() for b in range(256)])
 _FIELD = rb'(?:[^",]*|"(?:[^"]|"")*")'
 _PLAIN_QUOTED_LINE = re.compile(_FIELD + rb"(?:," + _FIELD + rb")*")
+
+
+@functools.lru_cache(maxsize=1)
+def python_whitespace() -> str:
+    """Every character str.strip() removes, from Python itself (found once, about 0.1 s)."""
+    return "".join(chr(c) for c in range(0x110000) if chr(c).isspace())
 
 
 def _is_utf8(data: bytes) -> bool:
@@ -129,6 +131,11 @@ class CsvLines:
 
     def _batches(self, columns: list[int]):
         """pyarrow record batches of the given columns, every cell as text."""
+        # pyarrow is imported here, by the files large enough to need it (about 0.1 s).
+        import pyarrow as pa
+        import pyarrow.compute as pc
+        import pyarrow.csv as pacsv
+
         view = memoryview(self.data)
         pieces = [view[self.starts[first]:self.ends[last]] for first, last in self.runs]
         body = pieces[0] if len(pieces) == 1 else b"\n".join(pieces)
@@ -144,7 +151,7 @@ class CsvLines:
                 include_columns=[names[j] for j in columns], strings_can_be_null=False,
                 quoted_strings_can_be_null=False))
         for batch in reader:
-            yield [pc.utf8_trim(batch.column(k), PYTHON_WHITESPACE) for k in range(len(columns))]
+            yield [pc.utf8_trim(batch.column(k), python_whitespace()) for k in range(len(columns))]
 
     def read(self, numbers: list[int], texts: list[int]) -> tuple[dict, dict] | None:
         """({column: (float values, missing) or None}, {column: object array of text}).
@@ -152,6 +159,8 @@ class CsvLines:
         None for a number column means a cell float() refuses: read it as text instead. The
         whole result is None when pyarrow cannot parse the records (e.g. a wrong cell count).
         """
+        import pyarrow as pa
+
         columns = list(numbers) + list(texts)
         parts = {j: [] for j in columns}
         rows = 0
@@ -185,6 +194,9 @@ def _joined(parts: list, text: bool):
 def _append_numbers(parts: list, cells) -> list | None:
     """parts + [(values, missing)] for one block of a number column; None if a cell is not a
     number float() reads."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
     missing = pc.equal(cells, "").to_numpy(zero_copy_only=False)
     filled = pc.if_else(pa.array(missing), "0", cells) if missing.any() else cells
     try:

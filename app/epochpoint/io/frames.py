@@ -20,12 +20,10 @@ import warnings
 
 import astropy.units as u
 import numpy as np
-from astropy.coordinates import FK5, ICRS
 from astropy.time import Time
 
 from .epochs import split_epoch
 from .errors import quote
-from .fk4 import fk4_to_fk5_j2000
 
 FRAMES = ("icrs", "fk5", "fk4")
 DEFAULT_EQUINOX = {"fk5": "J2000.0", "fk4": "B1950.0"}
@@ -77,6 +75,8 @@ def convert_to_icrs(frame: np.ndarray, equinox: np.ndarray, astrometry: dict,
         rows = np.flatnonzero((frame == key[0]) & (equinox == key[1]))
         group = {k: v[rows] for k, v in out.items()}
         if key[0] == "fk4":
+            from .fk4 import fk4_to_fk5_j2000  # astropy.coordinates: only for FK4 rows
+
             group = fk4_to_fk5_j2000(key[1], group, given[rows])
         converted = _fk5_to_icrs(DEFAULT_EQUINOX["fk5"] if key[0] == "fk4" else key[1], group)
         for k, v in converted.items():
@@ -86,6 +86,9 @@ def convert_to_icrs(frame: np.ndarray, equinox: np.ndarray, astrometry: dict,
 
 def _fk5_to_icrs(equinox: str, a: dict) -> dict:
     """ICRS ra, dec and proper motion of FK5 rows that share one equinox."""
+    # astropy.coordinates (about 0.2 s to import) is loaded by the files that need it.
+    from astropy.coordinates import FK5, ICRS
+
     equinox_time = Time(equinox)  # 'J2000.0' / 'B1950.0' strings, as astropy reads them
     position = dict(ra=a["ra"] * u.deg, dec=a["dec"] * u.deg)
     # The tangential velocity at a nominal distance; radial velocity and distance are

@@ -18,9 +18,7 @@ import io
 import os
 
 import numpy as np
-from astropy.table import MaskedColumn, Table
 
-from .astropytables import table_bytes
 from .atomic import atomic_write_text
 from .errors import InputError
 from .peopletable import format_people_table
@@ -43,8 +41,11 @@ def result_json(columns) -> str:
     return out.getvalue()
 
 
-def result_table(columns, meta, units) -> Table:
+def result_table(columns, meta, units):
     """An astropy Table of a result: NaN/None masked, units attached, meta as plain scalars."""
+    # astropy.table (about 0.1 s to import) is loaded by the formats that need it.
+    from astropy.table import MaskedColumn, Table
+
     table = Table()
     for name, values in columns.items():
         values = np.asarray(values)
@@ -67,10 +68,10 @@ def format_result(columns, meta, format: str, units=None, formatters=None) -> st
         return result_csv(columns, meta)
     if format == "json":
         return result_json(columns)
-    if format == "ecsv":
-        return table_bytes(result_table(columns, meta, units), "ecsv").decode("utf-8")
-    if format == "votable":
-        return table_bytes(result_table(columns, meta, units), "votable").decode("utf-8")
+    if format in ("ecsv", "votable"):
+        from .astropytables import table_bytes
+
+        return table_bytes(result_table(columns, meta, units), format).decode("utf-8")
     if format == "table":
         return format_people_table(columns, formatters, meta, units)
     raise InputError(None, f"unknown result format {format!r} (use {', '.join(RESULT_FORMATS)})")

@@ -28,11 +28,9 @@ from concurrent.futures import ThreadPoolExecutor
 from json.encoder import encode_basestring_ascii
 
 import numpy as np
-import pyarrow as pa
-import pyarrow.compute as pc
 
 from .atomic import atomic_output
-from .columntext import float_texts, joined_text, text_array
+from .columntext import SMALL_COLUMN, float_texts, joined_text, text_array
 from .errors import InputError
 
 STREAMED_FORMATS = ("csv", "json", "ecsv")
@@ -66,14 +64,25 @@ def _one_line(value) -> str:
 
 def _float_cells(values: np.ndarray, missing: str) -> list:
     """Shortest round-trip text of each float (Python's repr), `missing` where not finite."""
-    return float_texts(values, missing).to_pylist()
+    texts = float_texts(values, missing)
+    return texts if isinstance(texts, list) else texts.to_pylist()
 
 
 def _bool_texts(values: np.ndarray, true: str, false: str):
+    if values.size < SMALL_COLUMN:
+        return [true if v else false for v in values.tolist()]
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
     return pc.if_else(pa.array(values.astype(bool, copy=False)), true, false)
 
 
 def _int_texts(values: np.ndarray):
+    if values.size < SMALL_COLUMN:
+        return [str(v) for v in values.tolist()]
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
     return pc.cast(pa.array(values), pa.string())
 
 
@@ -126,6 +135,13 @@ def _csv_column(values):
     return text_array(cells)
 
 
+def _quoted_if_empty(cells):
+    """'""' for each empty cell of a pyarrow string array."""
+    import pyarrow.compute as pc
+
+    return pc.if_else(pc.equal(cells, ""), '""', cells)
+
+
 class CsvResultWriter:
     """`# key: value` meta lines, a header row, then the rows of each chunk."""
 
@@ -144,7 +160,7 @@ class CsvResultWriter:
         if len(cells) == 1:  # the csv module quotes a row's only cell when it is empty
             only = cells[0]
             cells = [['""' if c == "" else c for c in only] if isinstance(only, list)
-                     else pc.if_else(pc.equal(only, ""), '""', only)]
+                     else _quoted_if_empty(only)]
         pieces = [cells[0]]
         for column in cells[1:]:
             pieces += [",", column]

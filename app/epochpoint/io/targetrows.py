@@ -21,6 +21,7 @@ from .angles import parse_ra, parse_dec
 from .epochs import EPOCH_MAX_YEAR, EPOCH_MIN_YEAR, parse_epoch
 from .errors import InputError, SkippedRowWarning, quote
 from .frames import convert_to_icrs, parse_equinox, parse_frame
+from .eventfields import EVENT_PARSERS
 from .planningfields import PARSERS
 from .targetchecks import DEFAULT_EPOCH_JYEAR, fill_epochs, warn_about_rows
 from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS
@@ -217,11 +218,12 @@ def _check_planning_fields(raw: RawTable, note) -> None:
     typo is reported with its file line; the values themselves stay in the extras."""
     for label, cells in raw.extra.items():
         name = str(label).strip().lower()
-        if name not in PARSERS or name == "notes":
+        parse = PARSERS.get(name) or EVENT_PARSERS.get(name)
+        if parse is None or name in ("notes", "event_kind"):
             continue
         for i, cell in enumerate(cells):
             try:
-                PARSERS[name](cell)
+                parse(cell)
             except ValueError as err:
                 note(i, label, str(err))
 
@@ -233,6 +235,9 @@ def warn_skipped(error: InputError) -> None:
 
 def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> Targets:
     """Validated ICRS `Targets` from a RawTable (see module docstring)."""
+    from .hipnames import fill_hipparcos_rows  # rows named 'HIP n' without coordinates
+
+    raw = fill_hipparcos_rows(raw)
     names, message_names = _names(raw)
     problems: dict[int, InputError] = {}
 

@@ -6,10 +6,11 @@ depends on colour alone.
 from __future__ import annotations
 
 import numpy as np
-from PySide6.QtCore import QAbstractTableModel, QModelIndex, QSortFilterProxyModel, Qt
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, Qt
 from PySide6.QtGui import QFont
 
 from ...io.angles import format_dec_dms, format_ra_hms
+from ..sorting import SORT_ROLE, ValueSortProxy, sort_value
 
 OVER_MARK = "▲ over"
 
@@ -31,9 +32,9 @@ KEYS = [c[0] for c in COLUMNS]
 
 
 class DriftModel(QAbstractTableModel):
-    """The drift result as a table; sort role gives raw numbers."""
+    """The drift result as a table; SORT_ROLE gives plain Python numbers and words."""
 
-    SORT_ROLE = Qt.ItemDataRole.UserRole
+    SORT_ROLE = SORT_ROLE
 
     def __init__(self, parent=None):
         super().__init__(parent)
@@ -86,12 +87,10 @@ class DriftModel(QAbstractTableModel):
         value = self.value(row, key)
         if role == Qt.ItemDataRole.DisplayRole:
             return self._text(row, key, value)
-        if role == self.SORT_ROLE:
-            if key == "crossing":
-                return value or ""
+        if role == SORT_ROLE:
             if isinstance(value, tuple):
                 return value[0]  # positions sort by right ascension
-            return value if not isinstance(value, (bool, np.bool_)) else int(value)
+            return sort_value(value)  # crossings: ISO dates sort as text; none: last
         if role == Qt.ItemDataRole.FontRole and self.over(row):
             font = QFont()
             font.setBold(True)
@@ -130,10 +129,5 @@ class DriftModel(QAbstractTableModel):
         return value[:10] + (f" ± {sigma:.1f} d" if sigma < 10 else f" ± {sigma:.0f} d")
 
 
-class DriftSortProxy(QSortFilterProxyModel):
-    def lessThan(self, left, right):  # noqa: N802
-        a, b = left.data(DriftModel.SORT_ROLE), right.data(DriftModel.SORT_ROLE)
-        try:
-            return (a if a is not None else -np.inf) < (b if b is not None else -np.inf)
-        except TypeError:
-            return str(a) < str(b)
+class DriftSortProxy(ValueSortProxy):
+    """The drift table sorted by value (gui.sorting)."""

@@ -1,0 +1,1 @@
+"""Star catalogues shipped with the app's dependencies, read into columnar Targets."""
