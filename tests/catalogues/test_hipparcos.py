@@ -111,9 +111,9 @@ def test_target_list_names_resolve(tmp_path):
     assert targets.ra[1] == 10.5
 
 
-def test_name_only_list_and_unknown_number(tmp_path):
+def test_unknown_number_is_a_one_line_row_error(tmp_path):
     path = tmp_path / "names.csv"
-    path.write_text("name\nHIP 87937\nHIP 999999\n")
+    path.write_text("name,ra,dec\nHIP 87937,,\nHIP 999999,,\n")
     with pytest.raises(InputError) as err:
         read_targets(path)
     text = str(err.value)

@@ -14,8 +14,8 @@ import numpy as np
 import pytest
 from PySide6.QtCore import QTimer
 from PySide6.QtGui import QImage
-from PySide6.QtWidgets import (QApplication, QCheckBox, QFileDialog, QMessageBox, QRadioButton,
-                               QStyle, QStyleOptionButton, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QApplication, QCheckBox, QFileDialog, QListView, QMessageBox,
+                               QRadioButton, QStyle, QStyleOptionButton, QVBoxLayout, QWidget)
 
 from epochpoint.gui import themes
 from epochpoint.gui.app import make_application
@@ -53,7 +53,6 @@ def rgb(widget) -> np.ndarray:
 
 def assert_night(widget, what: str) -> None:
     pixels = rgb(widget)
-    widget.grab().save(f"/tmp/night_{what.replace(' ', '_').replace('&', '')}.png")
     green_blue = pixels[..., 1:].max(axis=-1)
     bright = np.argwhere(green_blue > MAX_GREEN_BLUE)
     assert bright.size == 0, (f"{what}: {len(bright)} pixels too bright in green or blue, "
@@ -112,7 +111,6 @@ def test_file_dialog_is_red(night, qtbot, tmp_path, mode):
                          else QFileDialog.AcceptMode.AcceptSave)
     dialog.resize(760, 460)
     shown(qtbot, dialog)
-    from PySide6.QtWidgets import QListView
     view = dialog.findChild(QListView, "listView")
     qtbot.waitUntil(lambda: view.model().rowCount(view.rootIndex()) == 5, timeout=5000)
     qtbot.wait(50)

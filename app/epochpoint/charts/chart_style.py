@@ -4,15 +4,25 @@ A style is a plain dict. Callers pass only what they want to change (a desktop t
 background, foreground and accent); `resolve_style` fills in the rest. On a dark background
 everything is derived from the foreground colour alone, so a red-on-black night theme gives
 red-on-black charts that keep dark-adapted eyes dark: twilight bands are faint tints of the
-foreground, lines differ by brightness and dash pattern instead of hue.
+foreground, lines differ by brightness and dash pattern instead of hue. Either way there are
+60 distinct (colour, dash) styles for target lines, so a long list never repeats one.
 """
 from __future__ import annotations
 
-import matplotlib
 from matplotlib.colors import to_hex, to_rgb
 
-_TAB20 = [matplotlib.colormaps["tab20"](k) for k in range(0, 20, 2)] + \
-         [matplotlib.colormaps["tab20"](k) for k in range(1, 20, 2)]
+# Epochpoint's own line colours for a light background: twelve hues around the colour circle,
+# dark enough to read on white, neighbours in the list far apart so the first few differ most.
+LINE_COLOURS = ("#1b4f8a", "#c0541a", "#2e7d32", "#8e2a6b", "#8a6d00", "#0f7c83",
+                "#b3213b", "#5a3fa0", "#4f6b12", "#a85a8a", "#3d5a6c", "#7a3a12")
+# Dash patterns (matplotlib (offset, on-off) in points), used in this order once the colours
+# run out: line N gets colour N mod (number of colours) and dash N // (number of colours).
+LINE_DASHES = ("-", (0, (6, 2)), (0, (1.5, 1.5)), (0, (6, 2, 1.5, 2)), (0, (10, 3)),
+               (0, (3, 3)), (0, (6, 2, 1.5, 2, 1.5, 2)), (0, (1.5, 4)), (0, (12, 2, 3, 2)),
+               (0, (4, 1.5, 1, 1.5)), (0, (8, 4)), (0, (2, 1, 2, 4)))
+# Brightness steps of the foreground for target lines on a dark chart (hue would undo a red
+# night theme), brightest first.
+DARK_LINE_TINTS = (1.0, 0.8, 0.62, 0.46, 0.34)
 
 # The look of the command line's PNG charts (and the app's light theme).
 LIGHT = {
@@ -30,9 +40,8 @@ LIGHT = {
     "observable": "#1d7a3a",
     "unobservable": "#8f8f8f",
     "muted": "#6b6b6b",
-    "lines": tuple(to_hex(c) for c in _TAB20),
-    "dashes": ("-",),
-    "legend": True,
+    "lines": LINE_COLOURS,
+    "dashes": LINE_DASHES[:5],
 }
 
 DARK_BACKGROUND_LUMINANCE = 0.3
@@ -69,9 +78,8 @@ def _dark_palette(background, foreground, accent) -> dict:
         "observable": foreground,
         "unobservable": tint(0.45),
         "muted": tint(0.55),
-        "lines": tuple(tint(f) for f in (1.0, 0.72, 0.5)),
-        "dashes": ("-", "--", ":", "-."),
-        "legend": False,
+        "lines": tuple(tint(f) for f in DARK_LINE_TINTS),
+        "dashes": LINE_DASHES,
     }
 
 
@@ -90,8 +98,15 @@ def resolve_style(style: dict | None = None) -> dict:
 
 
 def line_cycle(style: dict):
-    """(colour, dash) pairs for target lines: every dash with every colour, brightest first."""
+    """(colour, dash) pairs for target lines: every dash with every colour, solid lines in
+    every colour first."""
     return [(colour, dash) for dash in style["dashes"] for colour in style["lines"]]
+
+
+def legend_style(style: dict) -> dict:
+    """Legend keyword arguments in the style's colours."""
+    return {"facecolor": style["background"], "edgecolor": style["rings"],
+            "labelcolor": style["foreground"], "framealpha": 1.0}
 
 
 def apply_axes_style(figure, ax, style: dict) -> None:

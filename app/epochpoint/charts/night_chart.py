@@ -14,12 +14,14 @@ import matplotlib.dates as mdates
 import numpy as np
 from matplotlib.figure import Figure
 
-from .chart_style import apply_axes_style, line_cycle, resolve_style
+from .chart_style import apply_axes_style, legend_style, line_cycle, resolve_style
 from .plan_clock import site_zone
 
 # The four darkness spans, lightest (Sun below the horizon) to darkest; colours in the style.
 DARKNESS_SPANS = ("sun", "civil", "nautical", "astronomical")
 MARGIN_S = 1800.0
+LEGEND_FONT_PT = 7.0
+END_LABEL_FONT_PT = 7.5
 
 
 def _dates(plan, seconds) -> np.ndarray:
@@ -69,7 +71,8 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
     indices of the targets drawn, in legend order.
 
     style: colours to change (see chart_style.resolve_style); None keeps the default look.
-    With a dark style the targets are named at their highest point instead of in a legend.
+    Every line has a style of its own (chart_style.line_cycle); the legend sits beside the
+    plot and lines are also named at their ends, in the twilight, never over the darkness.
     """
     look = resolve_style(style)
     figure.clear()
@@ -105,6 +108,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
         drawn = np.append(drawn, selected)
     scheduled = {int(i): (s, e) for i, s, e in zip(plan.schedule.index, plan.schedule.start_s,
                                                     plan.schedule.end_s)}
+    ends = []  # (name, colour, altitude at the chart's start and end, selected)
     for k, i in enumerate(drawn):
         colour, dash = cycle[k % len(cycle)]
         alt, _ = plan.windows.observed_altaz(np.full(t.shape, i), t)
@@ -117,16 +121,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
             alt_b, _ = plan.windows.observed_altaz(np.full(tb.shape, i), tb)
             ax.plot(_dates(plan, tb), alt_b, lw=7.0, color=colour, alpha=0.6,
                     solid_capstyle="round", zorder=5)
-        if not look["legend"] and np.nanmax(alt) > 0.0:
-            peak = int(np.nanargmax(alt))
-            near_top = alt[peak] > 84.0
-            ha = "left" if peak < 20 or near_top else "right" if peak > len(t) - 20 else "center"
-            ax.annotate(str(plan.windows.names[i]), (x[peak], alt[peak]),
-                        xytext=(4 if near_top else 0, -4 if near_top else 3),
-                        textcoords="offset points", ha=ha, va="top" if near_top else "bottom",
-                        color=colour,
-                        fontsize=8, fontweight="bold" if i == selected else "normal",
-                        zorder=6, annotation_clip=True)
+        ends.append((str(plan.windows.names[i]), colour, alt[0], alt[-1], i == selected))
 
     ax.set_ylim(0.0, 90.0)
     ax.set_xlim(x[0], x[-1])
@@ -138,10 +133,62 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
     title = (f"{plan.site.name or 'Site'}: night of {plan.night.date.isoformat()} "
              f"({plan.constraints.darkness} darkness shaded darkest)")
     ax.set_title(title, fontsize=10, color=look["foreground"])
-    if look["legend"]:
-        ax.legend(loc="upper right", fontsize=7, ncol=2, framealpha=0.85)
+    # The legend beside the plot, never over the night; columns enough to fit its height.
+    entries = len(drawn) + 1
+    rows = max(4, int(figure.get_figheight() * 72.0 * 0.8 / (LEGEND_FONT_PT * 1.7)))
+    ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0,
+              fontsize=LEGEND_FONT_PT, ncol=-(-entries // rows), **legend_style(look))
     figure.tight_layout()
+    _label_line_ends(ax, ends, x, dark_edges(plan))
     return ax, drawn
+
+
+def dark_edges(plan) -> tuple[float, float] | None:
+    """Chart x (date numbers) where the night's darkness (the level the plan asks for, else
+    the deepest reached) begins and ends; None when the Sun never sets."""
+    spans = {level: (a, b) for level, a, b in darkness_spans_s(plan)}
+    if not spans:
+        return None
+    level = plan.constraints.darkness if plan.constraints.darkness in spans else \
+        [lv for lv in DARKNESS_SPANS if lv in spans][-1]
+    return tuple(_dates(plan, spans[level]))
+
+
+def _label_line_ends(ax, ends, x, edges) -> None:
+    """Name each line at its ends, in the twilight on either side of the darkness: at the
+    chart's left edge for lines already up, at the right edge for lines still up. Labels are
+    spread so they never overlap; one that would reach into the darkness is left out (the
+    legend names every line)."""
+    figure = ax.figure
+    get = getattr(figure.canvas, "get_renderer", None)
+    renderer = get() if get is not None else figure._get_renderer()
+    height_px = ax.get_window_extent(renderer).height
+    left, right = ((ax.transData.transform((e, 0.0))[0] for e in edges) if edges
+                   else (np.inf, -np.inf))
+    step_deg = 90.0 * (END_LABEL_FONT_PT * figure.dpi / 72.0 * 1.15) / max(height_px, 1.0)
+    for side, column, x_at, ha in (("start", 2, x[0], "left"), ("end", 3, x[-1], "right")):
+        up = [e for e in ends if 0.0 < e[column] <= 90.0]
+        up.sort(key=lambda e: e[column])
+        for (name, colour, *_, chosen), y in zip(up, _spread([e[column] for e in up], step_deg)):
+            if y < 0.0:
+                continue  # more names than the edge has room for
+            label = ax.text(x_at, y, f" {name} ", color=colour, ha=ha, va="center",
+                            fontsize=END_LABEL_FONT_PT, zorder=6,
+                            fontweight="bold" if chosen else "normal")
+            box = label.get_window_extent(renderer)
+            if box.x1 > left and box.x0 < right:
+                label.remove()
+
+
+def _spread(values, step: float) -> list:
+    """Sorted values moved apart to at least `step` from each other, kept inside 0..90."""
+    out = []
+    for v in values:
+        out.append(max(v, out[-1] + step) if out else max(v, step / 2.0))
+    top = 90.0 - step / 2.0
+    for k in range(len(out) - 1, -1, -1):  # push back down from the top
+        out[k] = min(out[k], top if k == len(out) - 1 else out[k + 1] - step)
+    return out
 
 
 def save_night_chart(plan, path: str, top_n: int = 12, size=(11.0, 6.0), dpi: int = 110):

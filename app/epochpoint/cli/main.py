@@ -10,12 +10,12 @@ import warnings
 from ..core.timescale import StaleEarthOrientation
 from ..io.atomic import termination_cleanup
 from . import (batch_cmd, drift_cmd, events_cmd, export_cmd, gui_cmd, mount_cmd, plan_cmd,
-               positions_cmd)
+               pointing_cmd, positions_cmd)
 
 EXIT_INPUT_ERROR = 2
 COMMANDS = {"positions": positions_cmd, "drift": drift_cmd, "plan": plan_cmd,
             "export": export_cmd, "mount": mount_cmd, "gui": gui_cmd, "batch": batch_cmd,
-            "events": events_cmd}
+            "events": events_cmd, "pointing": pointing_cmd}
 
 
 class _Parser(argparse.ArgumentParser):

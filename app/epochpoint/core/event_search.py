@@ -37,7 +37,7 @@ from .site import Site
 from .sky_track import build_sky_track
 from .targets import Targets
 from .timescale import StaleEarthOrientation, iso_z, quiet_erfa
-from .vectors import unit_vectors
+from .vectors import unit_vectors, wrap_pm180
 from .windows import Constraints, _Geometry
 
 EVENT_SAMPLES_BASELINE = 4
@@ -171,7 +171,7 @@ def _judge_night(targets, site, date, rows, mid, half_d, base_d, sel, darkness, 
     geo = _Geometry(targets[uniq], site, sky, float(np.median(seconds)))
     idx = local[:, None]
     alt, az = geo.observed_altaz(idx, seconds)
-    ha = geo.ha(idx, seconds)
+    ha = wrap_pm180(geo.ha(idx, seconds))
     dec = np.broadcast_to(geo.dec[idx], seconds.shape)
     unit = unit_vectors(np.radians(geo.ra), np.radians(geo.dec))[:, local]
     flat_t = seconds.ravel()

@@ -73,7 +73,7 @@ def load_chain():
             try:
                 _choose_threading_layer()
                 from .kernels_chain import star_chain
-            except ImportError:
+            except (ImportError, OSError):  # no numba, or its LLVM library cannot load
                 _chain = False
             except RuntimeError as exc:  # numba found no writable cache location
                 warnings.warn(f"compiled positions unavailable, using numpy: {exc}; set "

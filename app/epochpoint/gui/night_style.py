@@ -9,14 +9,16 @@ adaptation: common practice at observatories).
 Fusion outlines an unchecked check box or radio button in a shade of the window colour, which
 is invisible on a near-black window. In the night theme they get an outline in the text
 colour, which keeps the contrast of a control's parts with its background at least 3:1
-(WCAG 2.1, success criterion 1.4.11, non-text contrast). The light theme draws as Fusion does.
+(WCAG 2.1, success criterion 1.4.11, non-text contrast). Qt draws a line edit's text cursor
+by inverting the pixels under it, which turns near-black into white; at night the focused line
+edit gets a steady cursor in the accent colour instead. The light theme draws as Fusion does.
 """
 from __future__ import annotations
 
 import numpy as np
-from PySide6.QtCore import QPointF, QRectF, QSize, Qt
+from PySide6.QtCore import QEvent, QObject, QPointF, QRect, QRectF, QSize, Qt
 from PySide6.QtGui import QColor, QIcon, QImage, QPainter, QPen, QPixmap
-from PySide6.QtWidgets import QProxyStyle, QStyle
+from PySide6.QtWidgets import QLineEdit, QProxyStyle, QStyle
 
 ICON_SIZES = (16, 22, 24, 32, 48, 64)
 # Green and blue of a redrawn icon pixel, as a fraction of its red (kept below 0x40 overall).
@@ -56,6 +58,29 @@ def red_icon(icon: QIcon, brightest: QColor) -> QIcon:
     return out
 
 
+class NightCaret(QObject):
+    """Paints the text cursor of the focused line edit in the accent colour (night only)."""
+
+    def __init__(self, style: "ThemedStyle"):
+        super().__init__()
+        self.style = style
+
+    def eventFilter(self, watched, event):  # noqa: N802 (Qt name)
+        if (event.type() != QEvent.Type.Paint or not self.style.night
+                or not isinstance(watched, QLineEdit) or not watched.hasFocus()
+                or watched.isReadOnly()):
+            return False
+        watched.event(event)  # the line edit draws itself (its own cursor has no width)
+        caret = watched.inputMethodQuery(Qt.InputMethodQuery.ImCursorRectangle)
+        painter = QPainter(watched)
+        # Qt widens the cursor's rectangle by 5 pixels each side for repainting; the middle.
+        painter.fillRect(QRect(caret.left() + (caret.width() + 1) // 2 - 1, caret.top(), 2,
+                               caret.height()),
+                         QColor(self.style.night["accent"]))
+        painter.end()
+        return True
+
+
 class ThemedStyle(QProxyStyle):
     """Fusion, with red icons and visible check indicators while `night` holds the night
     theme's colours (a dict of hex strings from gui.themes); None draws as Fusion."""
@@ -63,6 +88,18 @@ class ThemedStyle(QProxyStyle):
     def __init__(self):
         super().__init__("Fusion")
         self.night: dict | None = None
+        self.caret = NightCaret(self)
+
+    def polish(self, target):
+        """Every line edit gets the night's text cursor (it draws only at night)."""
+        if isinstance(target, QLineEdit):
+            target.installEventFilter(self.caret)
+        return super().polish(target)
+
+    def pixelMetric(self, metric, option=None, widget=None):  # noqa: N802 (Qt name)
+        if self.night and metric == QStyle.PixelMetric.PM_TextCursorWidth:
+            return 0  # NightCaret draws it
+        return super().pixelMetric(metric, option, widget)
 
     def _icon_colour(self) -> QColor:
         return QColor(self.night["text"])

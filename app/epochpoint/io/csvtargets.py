@@ -91,14 +91,13 @@ def read_csv_targets(path: str, data: bytes) -> RawTable:
 
 
 def _known_columns(path: str, header_line: int, labels: list, has_rows: bool):
-    """match_columns for the header, with the header's errors; ra and dec are required,
-    unless a name column may give them as 'HIP n' (io/hipnames.py)."""
+    """match_columns for the header, with the header's errors; ra and dec are required."""
     try:
         known, extra = match_columns(labels)
     except ValueError as err:
         raise InputError(path, str(err), line=header_line) from None
     for needed in ("ra", "dec"):
-        if needed not in known and "name" not in known:
+        if needed not in known:
             raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})",
                              line=header_line)
     if not has_rows:

@@ -1,7 +1,7 @@
 """Targets given by Hipparcos number: a row named 'HIP 87937' without coordinates.
 
 Before a target file's rows are validated (targetrows.build_targets), every row whose name cell
-reads `HIP n` and whose ra and dec cells are both empty (or whose file has no ra/dec column)
+reads `HIP n` and whose ra and dec cells are both empty
 takes the star's astrometry from the on-board Hipparcos new reduction (van Leeuwen 2007, see
 io/catalogues/hipparcos.py): ra, dec, epoch 1991.25, proper motions and parallax, overriding
 those cells of the row, and its errors where the file has error columns. A number not in the

@@ -1,0 +1,195 @@
+"""`epochpoint pointing stars|fit|apply`: calibrate a mount's pointing with centred stars.
+
+stars  bright Hipparcos stars spread over the sky the mount may reach now, in slew order
+fit    a pointing model (JSON) from a samples file (core/pointing_model, io/pointing_samples)
+apply  where the mount's axes must go for sky places: a samples-style file with ha_target and
+       dec_target, or any target list with --site --at
+"""
+from __future__ import annotations
+
+import json
+import sys
+
+from . import checks, common
+
+DEFAULT_MAX_MAGNITUDE = 4.0
+
+
+def add_parser(sub) -> None:
+    p = sub.add_parser("pointing", help="calibration stars, pointing-model fit and use",
+                       description="Pick calibration stars, fit a pointing model to centred "
+                                   "stars, and correct sky places for the mount's "
+                                   "imperfections.")
+    actions = p.add_subparsers(dest="pointing_action", required=True, metavar="ACTION",
+                               parser_class=type(p))
+    stars = actions.add_parser("stars", help="bright stars spread over the reachable sky now")
+    common.add_site_arguments(stars)
+    common.add_time_argument(stars)
+    stars.add_argument("--count", type=checks.count(1, 500), default=20, metavar="N",
+                       help="how many stars (default 20)")
+    stars.add_argument("--min-altitude", type=checks.number(0.0, 89.0, unit="deg"),
+                       default=20.0, metavar="DEG",
+                       help="lowest altitude (default 20; the site's interlocks also apply)")
+    stars.add_argument("--max-magnitude", type=checks.number(-2.0, 12.0, unit="mag"),
+                       default=DEFAULT_MAX_MAGNITUDE, metavar="MAG",
+                       help=f"faintest Hipparcos magnitude (default {DEFAULT_MAX_MAGNITUDE:g})")
+    common.add_output_arguments(stars, ("table", "csv", "json"))
+
+    fit = actions.add_parser("fit", help="fit a pointing model to a samples file")
+    fit.add_argument("samples", metavar="SAMPLES", help="samples CSV (time, name, ha_target, "
+                                                        "dec_target, ha_mount, dec_mount)")
+    fit.add_argument("--site", required=True, metavar="SITE",
+                     help="site file (TOML) or LAT,LON,HEIGHT: the latitude is used")
+    fit.add_argument("--mount-type", choices=("equatorial", "altaz"), default="equatorial",
+                     help="equatorial (ha/dec columns, default) or altaz (alt/az columns)")
+    fit.add_argument("--terms", metavar="NAME,NAME",
+                     help="terms to fit (default: the standard set of the mount type)")
+    fit.add_argument("--output", required=True, metavar="MODEL.json",
+                     help="the model file to write (atomically)")
+
+    apply = actions.add_parser("apply", help="mount axis readings for sky places")
+    apply.add_argument("model", metavar="MODEL.json")
+    apply.add_argument("targets", metavar="TARGETS",
+                       help="CSV with ha_target, dec_target (alt_target, az_target for an "
+                            "alt-az model), or any target list with --site --at")
+    apply.add_argument("--skip-bad-rows", action="store_true", help="(target lists) report "
+                       "each unreadable row on stderr and go on without it")
+    common.add_site_arguments(apply, required=False)
+    apply.add_argument("--at", metavar="TIME", help="ISO 8601 UTC instant or 'now' (target "
+                                                    "lists)")
+    common.add_output_arguments(apply, ("json", "csv"))
+
+
+def run(args) -> int:
+    return {"stars": _stars, "fit": _fit, "apply": _apply}[args.pointing_action](args)
+
+
+def _stars(args) -> int:
+    from ..core.pointing_model.star_picks import pick_calibration_stars
+    from ..io.catalogues.hipparcos import read_hipparcos
+
+    site = common.load_site(args)
+    catalogue = read_hipparcos(max_magnitude=args.max_magnitude)
+    rows, result = pick_calibration_stars(catalogue, site, args.at, args.count,
+                                          min_altitude=args.min_altitude)
+    if result is None:
+        raise ValueError("no Hipparcos star the interlocks allow stands above "
+                         f"{args.min_altitude:g} deg now; try a fainter --max-magnitude")
+    if len(rows) < args.count:
+        print(f"epochpoint: warning: only {len(rows)} stars are allowed now", file=sys.stderr)
+    columns = {"order": list(range(1, len(rows) + 1)),
+               "name": [str(n) for n in catalogue.names()[rows]],
+               "hp_mag": [round(float(m), 2) for m in catalogue.extra["hp_mag"][rows]]}
+    for key in ("ra_apparent", "dec_apparent", "ha", "dec_observed", "alt", "az"):
+        columns[key] = [round(float(v), 5) for v in result[key]]
+    _emit(columns, args, meta={"time": result.meta["time"]})
+    return 0
+
+
+def _fit(args) -> int:
+    from ..core.pointing_model import fit_pointing_model
+    from ..io import atomic_write_text, read_site
+    from ..io.pointing_samples import read_samples
+
+    site = read_site(args.site)
+    samples = read_samples(args.samples, args.mount_type)
+    if args.mount_type == "equatorial":
+        sky, mount = ("ha_target", "dec_target"), ("ha_mount", "dec_mount")
+    else:  # (az, alt): azimuth is the first axis
+        sky, mount = ("az_target", "alt_target"), ("az_mount", "alt_mount")
+    terms = None if not args.terms else [t.strip() for t in args.terms.split(",") if t.strip()]
+    fit = fit_pointing_model(samples[sky[0]], samples[sky[1]], samples[mount[0]],
+                             samples[mount[1]], mount_type=args.mount_type,
+                             latitude_deg=site.latitude, terms=terms, names=samples["name"])
+    model = fit.model
+    atomic_write_text(args.output, json.dumps(model.to_dict(), indent=2) + "\n")
+    print(_term_table(model))
+    return 0
+
+
+def _term_table(model) -> str:
+    """The fitted terms, their errors and significance, and the fit's figures."""
+    lines = [f"{'term':26} {'value':>10} {'error':>8} {'signif.':>8}"]
+    for name, value in model.values.items():
+        error = model.errors[name]
+        lines.append(f"{name:26} {value:10.2f} {error:8.2f} {abs(value) / error:8.1f}"
+                     if error > 0 else f"{name:26} {value:10.2f} {error:8.2f}")
+    lines.append(f"samples {model.samples}, rejected {len(model.rejected)}"
+                 + (f" ({', '.join(map(str, model.rejected))})" if model.rejected else ""))
+    lines.append(f"rms before {model.rms_before_arcsec:.2f} arcsec, after "
+                 f"{model.rms_after_arcsec:.2f} arcsec")
+    return "\n".join(lines)
+
+
+def _load_model(path):
+    from ..core.pointing_model import ModelError, PointingModel
+
+    try:
+        with open(path, encoding="utf-8") as handle:
+            data = json.load(handle)
+    except json.JSONDecodeError as err:
+        raise ModelError(f"{path}: line {err.lineno}: not JSON ({err.msg})") from None
+    return PointingModel.from_dict(data, source=str(path))
+
+
+def _has_sky_columns(path, names) -> bool:
+    """True when the file's first non-comment line (a CSV header) has all `names`."""
+    try:
+        with open(path, encoding="utf-8-sig") as handle:
+            for line in handle:
+                if line.strip() and not line.lstrip().startswith("#"):
+                    labels = {c.strip().lower() for c in line.split(",")}
+                    return all(n in labels for n in names)
+    except UnicodeDecodeError:
+        return False
+    return False
+
+
+def _apply(args) -> int:
+    model = _load_model(args.model)
+    equatorial = model.mount_type == "equatorial"
+    sky = ("ha_target", "dec_target") if equatorial else ("az_target", "alt_target")
+    out = ("ha_mount", "dec_mount") if equatorial else ("az_mount", "alt_mount")
+    if _has_sky_columns(args.targets, sky):
+        from ..io.pointing_samples import read_table
+
+        table, lines = read_table(args.targets, sky)
+        names = table.get("name", [f"line {n}" for n in lines])
+        first, second = table[sky[0]], table[sky[1]]
+    else:
+        if args.site is None or args.at is None:
+            raise ValueError(f"{args.targets}: has no {sky[0]}/{sky[1]} columns; for a target "
+                             f"list give --site and --at")
+        from ..core.positions import positions
+
+        targets = common.load_targets(args)
+        result = positions(targets, common.load_site(args), args.at)
+        names = [str(n) for n in targets.names()]
+        first, second = ((result["ha"], result["dec_observed"]) if equatorial
+                         else (result["az"], result["alt"]))
+    m1, m2 = model.mount_from_sky(first, second)
+    columns = {"name": list(names), sky[0]: [float(v) for v in first],
+               sky[1]: [float(v) for v in second],
+               out[0]: [round(float(v), 7) for v in m1], out[1]: [round(float(v), 7) for v in m2]}
+    _emit(columns, args, meta={})
+    return 0
+
+
+def _emit(columns: dict, args, meta: dict) -> None:
+    """JSON: a list of objects in row order; CSV; or a plain table."""
+    from ..io import atomic_write_text
+
+    names = list(columns)
+    rows = list(zip(*(columns[n] for n in names)))
+    if args.format == "json":
+        text = json.dumps([dict(zip(names, r)) for r in rows], indent=1) + "\n"
+    elif args.format == "csv":
+        text = "\n".join([",".join(names)] + [",".join(str(v) for v in r) for r in rows]) + "\n"
+    else:
+        widths = [max(len(n), *(len(str(v)) for v in columns[n])) for n in names]
+        text = "\n".join(" ".join(str(v).rjust(w) for v, w in zip(r, widths))
+                         for r in [names] + rows) + "\n"
+    if args.output:
+        atomic_write_text(args.output, text)
+    else:
+        sys.stdout.write(text)
