@@ -32,7 +32,7 @@ from epochpoint.io.eventfields import event_ephemerides
 
 DEMO_SITE = Path(__file__).resolve().parents[1] / "sample_targets" / "loma_candil.toml"
 FIRST_NIGHT = "2027-01-05"
-TIMING_CYCLES = 20000
+TIMING_CYCLES = 5000
 
 
 def random_systems(n: int, seed: int = 2027) -> Targets:

@@ -92,9 +92,8 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
 
     # The altitude limit every window respects.
     limit = plan.constraints.altitude_limit(plan.site)
-    ax.axhline(limit, color=look["limit"], lw=1.0, ls="--", zorder=2)
-    ax.text(x[0], limit + 1.0, f" limit {limit:g}°", color=look["limit"], fontsize=8,
-            va="bottom")
+    ax.axhline(limit, color=look["limit"], lw=1.0, ls="--", zorder=2,
+               label=f"altitude limit {limit:g}°")
 
     # The Moon.
     moon_alt = plan.sky.interp("moon_alt", t)
@@ -134,7 +133,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
              f"({plan.constraints.darkness} darkness shaded darkest)")
     ax.set_title(title, fontsize=10, color=look["foreground"])
     # The legend beside the plot, never over the night; columns enough to fit its height.
-    entries = len(drawn) + 1
+    entries = len(drawn) + 2
     rows = max(4, int(figure.get_figheight() * 72.0 * 0.8 / (LEGEND_FONT_PT * 1.7)))
     ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0,
               fontsize=LEGEND_FONT_PT, ncol=-(-entries // rows), **legend_style(look))
