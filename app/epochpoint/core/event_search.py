@@ -179,17 +179,22 @@ def _judge_night(targets, site, date, rows, mid, half_d, base_d, sel, darkness, 
     sun_sep = sky.separation_from("sun", flat_unit, flat_t).reshape(seconds.shape)
     sun_alt = sky.interp("sun_alt", flat_t).reshape(seconds.shape)
     level = TWILIGHT_ALTITUDE_DEG[darkness]
-    # Why each sample fails, in order: daylight or twilight, the altitude limit, interlocks.
-    reasons = np.full(seconds.shape, "", dtype=object)
-    reasons[sun_alt >= level] = f"Sun above {level:g} deg"
-    reasons[(reasons == "") & (alt < limit)] = f"below {limit:g} deg altitude"
-    locks = site.interlocks.violations(alt, az, ha, dec, sun_sep)
-    reasons[reasons == ""] = locks[reasons == ""]
-    ok = reasons == ""
+    # Why each sample fails, as codes into `words`, in order: daylight or twilight, the
+    # altitude limit, then the interlocks (checked only where the first two pass).
+    codes = np.where(sun_alt >= level, 1, np.where(alt < limit, 2, 0))
+    free = codes == 0
+    locks = site.interlocks.violations(alt[free], az[free], ha[free], dec[free], sun_sep[free])
+    locked = locks != ""
+    lock_words, lock_codes = np.unique(locks[locked].astype(str), return_inverse=True)
+    free_codes = np.zeros(locks.shape, dtype=int)
+    free_codes[locked] = np.ravel(lock_codes) + 3
+    codes[free] = free_codes
+    words = ["", f"Sun above {level:g} deg", f"below {limit:g} deg altitude", *lock_words]
+    ok = codes == 0
     event = (parts == 1) | (parts == 2)
     observable = np.where(ok.all(axis=1), "full",
                           np.where((ok & event).any(axis=1), "partial", "none"))
-    lost = np.array([_lost_text(reasons[e], parts) for e in range(len(rows))], dtype=object)
+    lost = _lost_texts(codes, words, parts)
     centre = EVENT_SAMPLES_BASELINE + EVENT_SAMPLES_EVENT // 2
     first, last = EVENT_SAMPLES_BASELINE, EVENT_SAMPLES_BASELINE + EVENT_SAMPLES_EVENT - 1
     moon = sky.separation_from("moon", unit, seconds[:, centre])
@@ -200,14 +205,20 @@ def _judge_night(targets, site, date, rows, mid, half_d, base_d, sel, darkness, 
                  "observable": observable, "lost": lost}
 
 
-def _lost_text(reasons: np.ndarray, parts: np.ndarray) -> str:
-    """'first half: below 30 deg altitude; baseline after: Sun above -18 deg' or ''."""
-    lost = []
-    for p, name in enumerate(PARTS):
-        bad = [r for r in reasons[parts == p] if r]
-        if bad:
-            lost.append(f"{name}: {bad[0]}")
-    return "; ".join(lost)
+def _lost_texts(codes: np.ndarray, words: list, parts: np.ndarray) -> np.ndarray:
+    """Per event (row of `codes`, 0 = allowed), 'first half: below 30 deg altitude; baseline
+    after: Sun above -18 deg' (the first failing reason of each failing part), or ''."""
+    base = len(words)
+    key = np.zeros(len(codes), dtype=np.int64)
+    for p in range(len(PARTS)):
+        part = codes[:, parts == p]
+        key = key * base + part[np.arange(len(part)), np.argmax(part > 0, axis=1)]
+    combos, which = np.unique(key, return_inverse=True)
+    texts = []
+    for combo in combos:
+        first = [(int(combo) // base ** (len(PARTS) - 1 - p)) % base for p in range(len(PARTS))]
+        texts.append("; ".join(f"{name}: {words[c]}" for name, c in zip(PARTS, first) if c))
+    return np.array(texts, dtype=object)[np.ravel(which)]
 
 
 def _combine(judged: list, n: int) -> dict:

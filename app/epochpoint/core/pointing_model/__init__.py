@@ -3,6 +3,7 @@
 terms.py    the geometric terms (physical imperfections) of equatorial and alt-az mounts
 fit.py      least-squares fit to centred stars, standard errors, robust outlier rejection
 model.py    a fitted model: JSON form, mount readings <-> sky places
+mount_frame.py  observed place -> model -> mount axes -> coordinates of date for a controller
 """
 from .fit import PointingFit, PoorCoverage, fit_pointing_model
 from .model import ModelError, PointingModel

@@ -41,6 +41,10 @@ class HorizonEditor(QGroupBox):
         add, remove = QPushButton("Add point"), QPushButton("Remove point")
         add.clicked.connect(self.add_row)
         remove.clicked.connect(self.remove_rows)
+        # Reading and writing horizon files is the site editor's (site_files.py).
+        self.load_button, self.save_button = QPushButton("Load…"), QPushButton("Save…")
+        self.load_button.setToolTip("Read a horizon file: azimuth and altitude per line")
+        self.save_button.setToolTip("Write the points as a horizon file")
         self.error = QLabel("")
         self.error.setObjectName("fieldError")
         self.error.setWordWrap(True)
@@ -51,8 +55,8 @@ class HorizonEditor(QGroupBox):
         note.setProperty("role", "fieldLabel")
 
         buttons = QHBoxLayout()
-        buttons.addWidget(add)
-        buttons.addWidget(remove)
+        for button in (add, remove, self.load_button, self.save_button):
+            buttons.addWidget(button)
         buttons.addStretch(1)
         layout = QGridLayout(self)
         layout.addWidget(self.table, 0, 0)

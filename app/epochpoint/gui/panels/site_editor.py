@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (QComboBox, QGridLayout, QGroupBox, QHBoxLayout, Q
 from ...core.limits import MOUNT_TYPES, HorizonMask, Interlocks, LimitError, MountLimits
 from ...core.site import Site, SiteError
 from .horizon_editor import HorizonCellError, HorizonEditor
+from .site_files import SiteFiles
 from .theme_link import theme_chart_style, theme_colour, watch_theme
 
 SUN_AVOIDANCE_WARN_DEG = 30.0
@@ -94,8 +95,9 @@ def _core_message(error: Exception) -> str:
     return text
 
 
-class SiteEditor(QWidget):
-    """Form for a Site; emits site_edited(Site) after each valid user edit."""
+class SiteEditor(SiteFiles, QWidget):
+    """Form for a Site; emits site_edited(Site) after each valid user edit. Site and horizon
+    files load and save through SiteFiles (site_files.py)."""
 
     site_edited = Signal(object)
 
@@ -106,6 +108,8 @@ class SiteEditor(QWidget):
         self.errors: dict = {}
         self._filling = False
         self.problems: dict = {}
+        # The mount's park position has no field: kept from the site last shown.
+        self.park: tuple = (None, None)
 
         inner = QWidget()
         rows = QVBoxLayout(inner)
@@ -125,6 +129,7 @@ class SiteEditor(QWidget):
         self.horizon.edited.connect(self.commit)
         self.errors["horizon"] = self.horizon.error
         rows.addWidget(self.horizon, 1)
+        rows.insertLayout(0, self._file_row())
 
         self.status = QLabel("")
         self.status.setWordWrap(True)
@@ -210,7 +215,12 @@ class SiteEditor(QWidget):
         for key in ("latitude", "longitude", "height", "pressure", "temperature", "humidity",
                     "wavelength"):
             self.fields[key].setText(_text_of(getattr(site, key)))
-        self.fields["timezone"].setCurrentText(site.timezone)
+        # A zone found from the coordinates shows empty, so it follows them when they change.
+        zone = self.fields["timezone"]
+        zone.setCurrentText("" if site.timezone_from_coordinates else site.timezone)
+        zone.lineEdit().setPlaceholderText(f"from the coordinates ({site.timezone})"
+                                           if site.timezone_from_coordinates else "")
+        self.park = (mount.park_ha, mount.park_dec)
         combo = self.fields["mount_type"]
         combo.setCurrentIndex(combo.findData(mount.mount_type))
         for key, _, _ in MOUNT_FIELDS:
@@ -260,8 +270,8 @@ class SiteEditor(QWidget):
             except FieldProblem as p:
                 problems[p.field] = p.message
         mount = self._try(problems, lambda: MountLimits(
-            mount_type=self.fields["mount_type"].currentData(),
-            **{k: values[k] for k, _, _ in MOUNT_FIELDS}),
+            mount_type=self.fields["mount_type"].currentData(), park_ha=self.park[0],
+            park_dec=self.park[1], **{k: values[k] for k, _, _ in MOUNT_FIELDS}),
             needs=[k for k, _, _ in MOUNT_FIELDS])
         mask = False
         try:
