@@ -44,7 +44,8 @@ rows = list(csv.DictReader(open(sys.argv[1])))
 col = lambda k: np.array([float(r[k]) for r in rows])
 t_obs = Time("%(when)s", scale="utc")
 stars = SkyCoord(ra=col("ra") * u.deg, dec=col("dec") * u.deg,
-                 pm_ra_cosdec=col("pm_ra_cosdec") * u.mas / u.yr, pm_dec=col("pm_dec") * u.mas / u.yr,
+                 pm_ra_cosdec=col("pm_ra_cosdec") * u.mas / u.yr,
+                 pm_dec=col("pm_dec") * u.mas / u.yr,
                  distance=(col("parallax") * u.mas).to(u.pc, u.parallax()),
                  radial_velocity=col("radial_velocity") * u.km / u.s,
                  obstime=Time(2016.0, format="jyear", scale="tdb"))

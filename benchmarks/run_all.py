@@ -9,7 +9,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).parent))
 BENCHMARKS = ("bench_positions", "bench_windows", "bench_plan", "bench_schedule",
-              "bench_output", "bench_batch", "bench_startup")
+              "bench_output", "bench_batch", "bench_startup", "bench_events")
 
 if __name__ == "__main__":
     for name in BENCHMARKS:

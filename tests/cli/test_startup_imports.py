@@ -1,5 +1,5 @@
 """A command imports only what it needs: the command line and a `positions` run on a short
-list load no Qt, no plotting, no astropy.table, no Arrow and no time-zone finder.
+list load no Qt, no plotting, no astropy.table, no Arrow, no compiler and no time-zone finder.
 
 Reference: the interpreter's own record of loaded modules (sys.modules), in a fresh process.
 """
@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 HEAVY = ["PySide6", "matplotlib", "astropy.table", "pyarrow", "pandas", "timezonefinder",
-         "astropy.coordinates", "astropy.utils.iers"]
+         "astropy.coordinates", "astropy.utils.iers", "numba"]
 SITE_TOML = Path(__file__).parents[2] / "sample_targets" / "loma_candil.toml"
 
 
@@ -20,7 +20,8 @@ def _loaded_after(code: str, cache_dir) -> list:
     env = dict(os.environ, EPOCHPOINT_CACHE_DIR=str(cache_dir))
     subprocess.run([sys.executable, "-c", "import epochpoint"], env=env, check=True,
                    timeout=240)  # builds the Earth-orientation cache first
-    probe = code + f"\nimport json, sys\nprint(json.dumps([m for m in {HEAVY!r} if m in sys.modules]))"
+    probe = (code + "\nimport json, sys\n"
+             f"print(json.dumps([m for m in {HEAVY!r} if m in sys.modules]))")
     done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
                           env=env, timeout=240)
     assert done.returncode == 0, done.stderr

@@ -203,3 +203,26 @@ def test_astropy_iers_is_set_offline_when_imported_after_epochpoint(tmp_path):
                "iers.conf.iers_degraded_accuracy)",
                {iers_cache.CACHE_DIR_VARIABLE: str(tmp_path)})
     assert out.split() == ["False", "None", "ignore"]
+
+
+def test_a_table_the_program_chose_in_astropy_is_the_one_used():
+    """A script that sets astropy's Earth-orientation table (here IERS_B alone, with its
+    values shifted so that they differ from the shipped table's) gets its values."""
+    import astropy.units as u
+
+    b_table = iers.IERS_B.open().copy()
+    b_table["PM_x"] += 1.0 * u.arcsec
+    b_table["UT1_UTC"] += 0.25 * u.s
+    when = Time("2019-05-04T03:00:00", scale="utc")
+    with iers.earth_orientation_table.set(b_table):
+        ctx = make_context(when)
+        ut1 = earth_orientation.with_ut1_utc(Time(when)).ut1
+    xp, yp = b_table.pm_xy(when)
+    assert ctx.polar_motion_rad == (float(xp.to_value("rad")), float(yp.to_value("rad")))
+    expected = Time(when)
+    expected.delta_ut1_utc = b_table.ut1_utc(expected)
+    assert (ut1.jd1, ut1.jd2) == (expected.ut1.jd1, expected.ut1.jd2)
+    # Back to the shipped (combined) table afterwards.
+    shipped = make_context(when)
+    assert shipped.polar_motion_rad[0] != ctx.polar_motion_rad[0]
+    assert shipped.polar_motion_rad[1] == ctx.polar_motion_rad[1]

@@ -48,11 +48,12 @@ park_dec = 60.0
 def _random_site(rng, name) -> Site:
     azimuth = np.sort(rng.choice(np.arange(0.0, 360.0, 7.5), size=6, replace=False))
     mount = MountLimits(mount_type=str(rng.choice(["german", "equatorial", "altaz"])),
-                        min_altitude=float(rng.uniform(0, 30)), ha_east=float(rng.uniform(1, 12)),
-                        park_ha=float(rng.uniform(-180, 180)), park_dec=float(rng.uniform(-90, 90)))
+                        min_altitude=float(rng.uniform(0, 30)),
+                        ha_east=float(rng.uniform(1, 12)), park_ha=float(rng.uniform(-180, 180)),
+                        park_dec=float(rng.uniform(-90, 90)))
     return Site(latitude=float(rng.uniform(-89, 89)), longitude=float(rng.uniform(-180, 180)),
                 height=float(rng.uniform(-100, 5000)), name=name,
-                timezone=str(rng.choice(["UTC", "Asia/Kolkata", "America/Santiago", None])) or None,
+                timezone=["UTC", "Asia/Kolkata", "America/Santiago", None][rng.integers(4)],
                 temperature=float(rng.uniform(-30, 35)),
                 interlocks=Interlocks(mount=mount, horizon=HorizonMask(
                     azimuth, rng.uniform(-5, 40, size=6)), sun_avoidance=float(rng.uniform(0, 60))))

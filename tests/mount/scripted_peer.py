@@ -8,8 +8,8 @@ records every element it receives with the moment it arrived, and answers as a s
 - ON_COORD_SET: takes the requested mode (Ok), or with refuse_mode answers Alert and keeps
   the mode it had (as a device that cannot track would);
 - the coordinates: in SYNC mode, Ok at the place (a sync); otherwise Busy, then (motion
-  "arrive") Ok at the place, offset by arrive_off_deg in declination, or (motion "stuck") Busy
-  until an abort;
+  "arrive") Ok at the place, offset by arrive_off_deg in declination and arrive_off_ra_h in
+  right ascension, or (motion "stuck") Busy until an abort;
 - TELESCOPE_ABORT_MOTION: the coordinates Idle, the abort Ok;
 - any other property: the new values echoed with Ok.
 Tests may also push raw bytes to the client (`send_raw`).
@@ -69,10 +69,12 @@ class ScriptedPeer:
 
     def __init__(self, definitions_xml: str | None = None, *, device: str = DEVICE,
                  motion: str = "arrive", refuse_mode: bool = False,
-                 arrive_off_deg: float = 0.0, step_s: float = 0.05, accept_s: float = 30.0):
+                 arrive_off_deg: float = 0.0, step_s: float = 0.05, accept_s: float = 30.0,
+                 arrive_off_ra_h: float = 0.0):
         self.definitions = definitions() if definitions_xml is None else definitions_xml
         self.device, self.motion, self.refuse_mode = device, motion, refuse_mode
         self.arrive_off_deg, self.step_s, self.accept_s = arrive_off_deg, step_s, accept_s
+        self.arrive_off_ra_h = arrive_off_ra_h
         self.listener = socket.create_server(("127.0.0.1", 0))
         self.port = self.listener.getsockname()[1]
         self.address = f"127.0.0.1:{self.port}"
@@ -179,4 +181,5 @@ class ScriptedPeer:
         if self.motion == "stuck":
             return
         time.sleep(self.step_s)
-        self._set("Number", name, "Ok", {"RA": ra_h, "DEC": dec + self.arrive_off_deg})
+        self._set("Number", name, "Ok", {"RA": ra_h + self.arrive_off_ra_h,
+                                         "DEC": dec + self.arrive_off_deg})

@@ -16,6 +16,9 @@ def add_targets_argument(parser) -> None:
                         help="target list: CSV, ECSV or VOTable")
     parser.add_argument("--skip-bad-rows", action="store_true",
                         help="report each unreadable row on stderr and go on without it")
+    parser.add_argument("--elements", metavar="FILE", action="append", default=[],
+                        help="add the asteroids and comets of an orbital-elements file in "
+                             "the Minor Planet Center's one-line layouts (may be repeated)")
 
 
 def add_time_argument(parser) -> None:
@@ -48,13 +51,22 @@ def add_output_arguments(parser, formats) -> None:
 
 
 def load_targets(args):
-    """Read the target file; with --skip-bad-rows each skipped row is one stderr line."""
+    """Read the target file (and the --elements files); with --skip-bad-rows each skipped row
+    is one stderr line."""
     from ..io import read_targets
 
     def report(error):
         print(f"epochpoint: skipped: {error}", file=sys.stderr)
 
-    return read_targets(args.targets, skip_bad_rows=args.skip_bad_rows, on_skip=report)
+    targets = read_targets(args.targets, skip_bad_rows=args.skip_bad_rows, on_skip=report)
+    elements = getattr(args, "elements", None) or []
+    if not elements:
+        return targets
+    # --elements FILE: the file's bodies join the list, after the targets.
+    from ..core.targets import concatenate
+    from ..io.catalogues.mpc_elements import read_mpc_elements
+
+    return concatenate([targets] + [read_mpc_elements(path) for path in elements])
 
 
 def load_site(args) -> Site:

@@ -39,7 +39,10 @@ def add_parser(sub) -> None:
                       help="the target list (CSV, ECSV or VOTable) and the target's name in it")
     slew.add_argument("--targets", dest="targets_option", metavar="FILE", help=argparse.SUPPRESS)
     common.add_site_arguments(slew)
-    _add_server_arguments(slew)
+    add_server_arguments(slew)
+    slew.add_argument("--model", metavar="MODEL.json",
+                      help="a pointing model (epochpoint pointing fit): command the place its "
+                           "axes need to see the target; the interlocks judge both places")
     slew.add_argument("--sync", action="store_true",
                       help="sync the mount's coordinates to the target instead of moving")
     slew.add_argument("--wait", action="store_true",
@@ -68,15 +71,15 @@ def add_parser(sub) -> None:
                            "region (default stop-tracking)")
 
     status = actions.add_parser("status", help="the mount's position, state, site and clock")
-    _add_server_arguments(status)
+    add_server_arguments(status)
     status.add_argument("--site", metavar="SITE",
                         help="also show our site beside the device's (file or LAT,LON,HEIGHT)")
 
     abort = actions.add_parser("abort", help="stop any motion now (always allowed)")
-    _add_server_arguments(abort)
+    add_server_arguments(abort)
 
 
-def _add_server_arguments(parser) -> None:
+def add_server_arguments(parser) -> None:
     parser.add_argument("--indi", required=True, metavar="HOST:PORT",
                         help="the INDI server, e.g. localhost:7624")
     parser.add_argument("--device", metavar="NAME",
@@ -87,8 +90,15 @@ def _add_server_arguments(parser) -> None:
 
 
 def run(args) -> int:
+    return run_mount_action(
+        lambda a, say, open_scope: {"slew": _slew, "status": _status,
+                                    "abort": _abort}[a.mount_action](a), args)
+
+
+def run_mount_action(action, args) -> int:
+    """Run action(args, say, open_scope) with the mount's errors mapped to exit statuses."""
     try:
-        return {"slew": _slew, "status": _status, "abort": _abort}[args.mount_action](args)
+        return action(args, _say, _open)
     except InterlockRefused as err:
         return _fail(err, EXIT_REFUSED)
     except ConnectionLost as err:
@@ -121,8 +131,9 @@ def _slew(args) -> int:
     targets_path, name = _targets_and_name(args)
     targets = read_targets(targets_path)
     site = common.load_site(args)
+    model = _model(args.model, site) if args.model else None
     # Refuse before touching the server: nothing is sent for a forbidden target.
-    checked_pointing(targets, site, name)
+    checked_pointing(targets, site, name, model=model)
     with _open(args) as scope:
         _say("\n".join(_status_lines(scope.status(), site)))
         if args.push_site:
@@ -135,7 +146,7 @@ def _slew(args) -> int:
                                     wait=args.wait, timeout_s=args.timeout,
                                     tolerance_arcsec=args.max_residual,
                                     track_s=args.track_minutes * 60.0, token=token,
-                                    notify=_say)
+                                    notify=_say, model=model)
         except KeyboardInterrupt:
             _say("Interrupted: aborting the motion.")
             scope.abort()
@@ -162,6 +173,20 @@ def _slew(args) -> int:
                      f"beyond the largest accepted residual of {args.max_residual:g} arcsec",
                      EXIT_MOUNT)
     return 0
+
+
+def _model(path: str, site):
+    """The pointing model of `path`, with a one-line note of what it is."""
+    from .pointing_cmd import load_model
+
+    model = load_model(path)
+    _say(f"Pointing model {path}: {model.mount_type}, terms {', '.join(model.values) or 'none'}; "
+         f"rms {model.rms_after_arcsec:.1f} arcsec after fitting ({model.rms_before_arcsec:.1f} "
+         f"before), {model.samples} samples.")
+    if abs(model.latitude - site.latitude) > 0.01:
+        _say(f"Caution: the model was fitted at latitude {model.latitude:g} deg, the site is at "
+             f"{site.latitude:g} deg.")
+    return model
 
 
 def _targets_and_name(args) -> tuple[str, str]:

@@ -64,7 +64,7 @@ def run(args) -> int:
                   min_altitude=args.min_altitude, max_airmass=args.max_airmass,
                   moon_separation=args.moon_separation, moon_scale=args.moon_scaled,
                   max_seconds=args.schedule_seconds, seed=args.seed,
-                  max_iterations=args.schedule_iterations)
+                  max_iterations=args.schedule_iterations, events=_events(targets, args))
     if args.chart:
         from ..charts import save_night_chart
         save_night_chart(result, args.chart, top_n=args.chart_targets)
@@ -77,6 +77,14 @@ def run(args) -> int:
     else:
         _write(args, _people(result, data))
     return 0
+
+
+def _events(targets, args):
+    """The targets' event ephemerides when the file has event columns, else None."""
+    if "event_epoch" not in targets.extra:
+        return None
+    from ..io.eventfields import event_ephemerides
+    return event_ephemerides(targets, args.targets)
 
 
 def _write(args, text: str) -> None:
@@ -151,7 +159,9 @@ def _people(result, data) -> str:
     text = people_table(table, columns, lines + ["Targets:"])
     order = {"start": np.array([_local(result, e["start"]) for e in data["schedule"]], dtype=object),
              "end": np.array([_local(result, e["end"]) for e in data["schedule"]], dtype=object),
-             "name": np.array([e["name"] for e in data["schedule"]], dtype=object),
+             "name": np.array([f"{e['name']} (fixed: {e['kind']} {e['cycle']})"
+                               if e.get("fixed") else e["name"] for e in data["schedule"]],
+                              dtype=object),
              "slew": np.array([e["slew_s"] for e in data["schedule"]], dtype=float)}
     text += "\n" + people_table(order, [PeopleColumn("Start", "start", str),
                                         PeopleColumn("End", "end", str),
@@ -162,6 +172,11 @@ def _people(result, data) -> str:
     if data["unscheduled"]:
         text += "\nNot scheduled:\n" + "".join(f"  {u['name']}: {u['reason']}\n"
                                               for u in data["unscheduled"])
+    if data.get("collisions"):
+        text += "\nEvents that collide with a reserved one:\n" + "".join(
+            f"  {c['name']} cycle {c['cycle']} ({_local(result, c['start'])} to "
+            f"{_local(result, c['end'])}): overlaps the block reserved for {c['lost_to']}\n"
+            for c in data["collisions"])
     return text
 
 

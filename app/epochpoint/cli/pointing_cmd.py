@@ -4,6 +4,8 @@ stars  bright Hipparcos stars spread over the sky the mount may reach now, in sl
 fit    a pointing model (JSON) from a samples file (core/pointing_model, io/pointing_samples)
 apply  where the mount's axes must go for sky places: a samples-style file with ha_target and
        dec_target, or any target list with --site --at
+record slew to each calibration star over INDI (interlocked), let the user centre it, and
+       append one sample per star to the samples file (mount.calibration)
 """
 from __future__ import annotations
 
@@ -58,9 +60,50 @@ def add_parser(sub) -> None:
     apply.add_argument("--at", metavar="TIME", help="ISO 8601 UTC instant or 'now' (target "
                                                     "lists)")
     common.add_output_arguments(apply, ("json", "csv"))
+    _add_record_parser(actions)
+
+
+def _add_record_parser(actions) -> None:
+    from ..mount.options import MAX_TRACK_S, MAX_WAIT_S
+    from .mount_cmd import add_server_arguments
+
+    record = actions.add_parser(
+        "record", help="slew to calibration stars over INDI and record centred samples",
+        description="For each star: slew (behind the site's interlocks), wait while you centre "
+                    "the star by hand and press Enter, then append one sample (the star's "
+                    "observed place and the mount's axes) to the samples file. The mount "
+                    "moves: keep people, hands and cables clear of it and follow your "
+                    "observatory's procedures.")
+    record.add_argument("stars", nargs="+", metavar="STAR",
+                        help="Hipparcos names ('HIP 87937'), or one target list or "
+                             "`pointing stars --format csv` file whose rows are visited in order")
+    common.add_site_arguments(record)
+    add_server_arguments(record)
+    record.add_argument("--samples", required=True, metavar="FILE",
+                        help="samples CSV; new samples are added to the ones already in it "
+                             "(rewritten atomically after each star)")
+    record.add_argument("--no-prompt", action="store_true",
+                        help="record each star once the slew has ended and settled, without "
+                             "waiting for Enter (scripts and tests)")
+    record.add_argument("--settle", type=checks.number(0.0, 600.0, unit="s"), default=2.0,
+                        metavar="S", help="with --no-prompt, seconds to wait after the slew "
+                                          "(default 2)")
+    record.add_argument("--push-site", action="store_true",
+                        help="first send our site and clock to the device")
+    record.add_argument("--timeout", default=120.0, metavar="S",
+                        type=checks.number(0.0, MAX_WAIT_S, lo_open=True, unit="s"),
+                        help="seconds to wait for each slew to end (default 120)")
+    record.add_argument("--track-minutes", default=5.0, metavar="MIN",
+                        type=checks.number(0.0, MAX_TRACK_S / 60.0, unit="min"),
+                        help="refuse a star unless it stays allowed this long after the slew "
+                             "(time to centre it; default 5)")
 
 
 def run(args) -> int:
+    if args.pointing_action == "record":
+        from .mount_cmd import run_mount_action
+
+        return run_mount_action(_record, args)
     return {"stars": _stars, "fit": _fit, "apply": _apply}[args.pointing_action](args)
 
 
@@ -121,7 +164,8 @@ def _term_table(model) -> str:
     return "\n".join(lines)
 
 
-def _load_model(path):
+def load_model(path):
+    """The pointing model in a JSON file; ModelError in one line naming file and field."""
     from ..core.pointing_model import ModelError, PointingModel
 
     try:
@@ -146,7 +190,7 @@ def _has_sky_columns(path, names) -> bool:
 
 
 def _apply(args) -> int:
-    model = _load_model(args.model)
+    model = load_model(args.model)
     equatorial = model.mount_type == "equatorial"
     sky = ("ha_target", "dec_target") if equatorial else ("az_target", "alt_target")
     out = ("ha_mount", "dec_mount") if equatorial else ("az_mount", "alt_mount")
@@ -193,3 +237,95 @@ def _emit(columns: dict, args, meta: dict) -> None:
         atomic_write_text(args.output, text)
     else:
         sys.stdout.write(text)
+
+
+def _record_stars(given):
+    """(Targets, names in visiting order) from one target file, or from Hipparcos names."""
+    import os
+
+    from ..io import read_targets
+    from ..io.catalogues.hipparcos import hipparcos_number, hipparcos_stars
+
+    if len(given) == 1 and os.path.isfile(given[0]):
+        targets = read_targets(given[0])
+        return targets, [str(n) for n in targets.names()]
+    numbers = [hipparcos_number(n) for n in given]
+    if None in numbers:
+        bad = given[numbers.index(None)]
+        raise ValueError(f"{bad!r} is neither a file nor a Hipparcos name like 'HIP 87937'")
+    targets = hipparcos_stars(numbers)
+    return targets, [str(n) for n in targets.names()]
+
+
+def _existing_samples(path) -> list[dict]:
+    """The samples already in the file (none when it does not exist)."""
+    import os
+
+    from ..io.pointing_samples import SAMPLE_HEADER, read_samples
+
+    if not os.path.exists(path):
+        return []
+    columns = read_samples(path)
+    times = columns.get("time", [""] * len(columns["line"]))
+    return [{"time": times[k], "name": columns["name"][k],
+             **{c: float(columns[c][k]) for c in SAMPLE_HEADER[2:]}}
+            for k in range(len(columns["line"]))]
+
+
+def _centred(name: str) -> bool:
+    """Ask the user to centre the star; True to record, False to skip (KeyboardInterrupt
+    on q or end of input stops the run)."""
+    try:
+        answer = input(f"Centre {name} in the eyepiece or camera with the hand controller, "
+                       "then press Enter to record it (s Enter: skip, q Enter: stop): ")
+    except EOFError:
+        raise KeyboardInterrupt from None
+    if answer.strip().lower().startswith("q"):
+        raise KeyboardInterrupt
+    return not answer.strip().lower().startswith("s")
+
+
+def _record(args, say, open_scope) -> int:
+    from ..core.pointing_model.model import wrap_ha
+    from ..io.pointing_samples import write_samples
+    from ..mount.calibration import record_star
+    from .mount_cmd import EXIT_REFUSED
+    from ..mount.errors import InterlockRefused
+
+    targets, names = _record_stars(args.stars)
+    site = common.load_site(args)
+    rows = _existing_samples(args.samples)  # a bad file stops here, before the mount moves
+    recorded, refused = 0, []
+    with open_scope(args) as scope:
+        if args.push_site:
+            scope.push_site(site, notify=say)
+        try:
+            for k, name in enumerate(names, start=1):
+                say(f"Star {k} of {len(names)}: {name}")
+                try:
+                    sample = record_star(scope, targets, site, name,
+                                         confirm=None if args.no_prompt else _centred,
+                                         settle_s=args.settle, timeout_s=args.timeout,
+                                         track_s=args.track_minutes * 60.0, notify=say)
+                except InterlockRefused as err:  # nothing was sent: go on with the next star
+                    say(f"Skipped: {err}")
+                    refused.append(name)
+                    continue
+                if sample is None:
+                    say(f"{name} not recorded.")
+                    continue
+                rows.append(sample)
+                write_samples(args.samples, rows)
+                recorded += 1
+                say(f"Recorded {name}: mount minus star "
+                    f"{wrap_ha(sample['ha_mount'] - sample['ha_target']) * 3600.0:+.1f} arcsec in hour "
+                    f"angle, {(sample['dec_mount'] - sample['dec_target']) * 3600.0:+.1f} arcsec "
+                    f"in declination.")
+        except KeyboardInterrupt:
+            say("Stopped: aborting any motion.")
+            scope.abort()
+            say(f"{recorded} sample(s) recorded in {args.samples}.")
+            return 130
+    say(f"{recorded} sample(s) recorded in {args.samples}"
+        + (f"; refused by the interlocks: {', '.join(refused)}" if refused else "") + ".")
+    return EXIT_REFUSED if refused and not recorded else 0

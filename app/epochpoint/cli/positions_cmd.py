@@ -65,6 +65,17 @@ def _people(table, site, ledger: bool) -> str:
                                     lower_bound_cells("{:7.2f}", table["error_lower_bound"])))
         if np.any(table["error_lower_bound"]):
             header.append(LOWER_BOUND_NOTE)
+    if "distance_au" in table:
+        # Solar-system rows: distance, apparent rates, angle from the Sun, V magnitude.
+        columns += [PeopleColumn("Dist au", "distance_au", "{:10.6f}"),
+                    PeopleColumn('dRA "/s', "rate_ra", "{:8.4f}"),
+                    PeopleColumn('dDec "/s', "rate_dec", "{:8.4f}"),
+                    PeopleColumn("Elong deg", "elongation", "{:6.1f}"),
+                    PeopleColumn("Mag", "magnitude", "{:5.1f}")]
+        header.append('Bodies: RA/Dec rates in arcsec per second of time (dRA includes '
+                      'cos Dec); elongation from the Sun.')
+        for note in table.meta.get("body_warnings", []):
+            header.append("Warning: " + note)
     if ledger:
         columns += [PeopleColumn(c.replace("ledger_", "").replace("_", " ") + ' "', c,
                                  "{:8.3f}")

@@ -34,8 +34,6 @@ import numpy as np
 from .iers_cache import load_tables
 
 MJD_ZERO = 2400000.5  # JD of MJD 0
-# astropy's own factor from arcseconds to radians, so converted values match it to the bit.
-_ARCSEC_TO_RAD = None
 # astropy picks a leap-second list that expires more than this many days from today
 # (180 - astropy.utils.iers.conf.auto_max_age, which is None here, counted as 30).
 _GOOD_ENOUGH_DAYS = 150
@@ -145,13 +143,13 @@ def with_ut1_utc(t):
     return utc
 
 
+@functools.lru_cache(maxsize=1)
 def _arcsec_to_rad() -> float:
-    global _ARCSEC_TO_RAD
-    if _ARCSEC_TO_RAD is None:
-        import astropy.units as u
+    """astropy's own factor from arcseconds to radians, so converted values match it to the
+    bit."""
+    import astropy.units as u
 
-        _ARCSEC_TO_RAD = u.arcsec.to(u.rad)
-    return _ARCSEC_TO_RAD
+    return u.arcsec.to(u.rad)
 
 
 class _LeapSecondList:

@@ -21,9 +21,9 @@ leaves the table in memory for this process only. Nothing is ever downloaded.
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import io
 import os
+import zlib
 from pathlib import Path
 
 import numpy as np
@@ -69,8 +69,9 @@ def source_key() -> str:
 
 def cache_path(key: str) -> Path:
     """The cache file for a source key."""
-    digest = hashlib.sha256(key.encode("utf-8")).hexdigest()[:16]
-    return cache_dir() / f"{CACHE_PREFIX}{digest}.npz"
+    # A short name (the key itself is stored inside and compared on every read).
+    digest = zlib.crc32(key.encode("utf-8"))
+    return cache_dir() / f"{CACHE_PREFIX}{digest:08x}.npz"
 
 
 def load_tables() -> dict:

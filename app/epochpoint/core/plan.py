@@ -48,6 +48,8 @@ class Plan:
     schedule: Schedule
     priority: np.ndarray
     duration_s: np.ndarray
+    # Fixed-time blocks of timed events (plan_events.py), or None.
+    reservations: object = None
 
     @property
     def t_ref(self) -> Time:
@@ -117,14 +119,35 @@ class Plan:
                    for i, start, end, slew in zip(order.index, starts, ends, order.slew_s)]
         unscheduled = [{"name": str(w.names[u.index]), "reason": w.reason[u.index] or u.reason}
                        for u in order.unscheduled]
+        collisions = []
+        if self.reservations is not None:
+            entries, collisions = _with_fixed_blocks(self, entries)
+            # A target observed in a reserved block is not "not scheduled".
+            fixed_names = {e["name"] for e in entries if e.get("fixed")}
+            unscheduled = [u for u in unscheduled if u["name"] not in fixed_names]
         return {"site": self.site.name or f"{self.site.latitude},{self.site.longitude}",
                 "date": self.night.date.isoformat(), "darkness": self.constraints.darkness,
                 "timezone": self.site.timezone,
                 "timezone_source": self.site.timezone_source,
                 "night": self.night.to_json(), "moon": self.moon, "targets": targets,
-                "schedule": entries, "unscheduled": unscheduled,
+                "schedule": entries, "unscheduled": unscheduled, "collisions": collisions,
                 "search": {"iterations": int(order.iterations), "seed": int(order.seed),
                            "stopped_by": order.stopped_by}}
+
+
+def _with_fixed_blocks(result: Plan, entries: list) -> tuple[list, list]:
+    """The schedule with the reserved event blocks (`"fixed": true`) in time order, and the
+    events that lost a collision."""
+    res, names = result.reservations, result.windows.names
+    times = iter(result.iso_many([t for b in res.fixed + tuple(c[0] for c in res.collisions)
+                                  for t in (b.start_s, b.end_s)]))
+    fixed = [{"name": str(names[b.index]), "start": next(times), "end": next(times),
+              "slew_s": 0.0, "fixed": True, "kind": b.kind, "cycle": b.cycle,
+              "observable": b.observable} for b in res.fixed]
+    collisions = [{"name": str(names[b.index]), "cycle": b.cycle, "start": next(times),
+                   "end": next(times), "lost_to": str(names[winner])}
+                  for b, winner in res.collisions]
+    return sorted(entries + fixed, key=lambda e: e["start"]), collisions
 
 
 def _rounded(value, digits):
@@ -176,7 +199,7 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          moon_separation: float = 0.0, moon_scale: bool = False,
          max_seconds: float = SCHEDULE_SECONDS, seed: int = SCHEDULE_SEED,
          max_iterations: int | None = SCHEDULE_ITERATIONS,
-         mount_position: tuple[float, float] | None = None) -> Plan:
+         mount_position: tuple[float, float] | None = None, events=None) -> Plan:
     """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
 
     Altitudes are observed (refracted) altitudes with the site's weather; pressure 0 turns
@@ -184,6 +207,8 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
     The schedule search runs `max_iterations` seeded by `seed` (the same plan every time);
     max_seconds is only an upper limit on it. Slews start from the site's park position or
     from `mount_position`, the (hour angle, declination) in degrees the mount reports.
+    events: the targets' EventEphemerides (io.eventfields.event_ephemerides) or None; the
+    night's observable events then get fixed-time blocks (plan_events.py).
     """
     if darkness not in DARKNESS_LEVELS:
         raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "
@@ -214,11 +239,18 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
                   german=limits.mount_type == "german", latitude_deg=site.latitude,
                   lst_start_deg=float(windows.geometry.local_sidereal_deg(0.0)),
                   park_ha_deg=park_ha, park_dec_deg=park_dec)
-    order = schedule(priority_weight(priority), np.maximum(duration, 1.0), windows.blocks,
+    reservations, blocks = None, windows.blocks
+    if events is not None and events.periodic.any():
+        from .plan_events import AT_EVENTS_ONLY, reserve_events
+        reservations = reserve_events(targets, events, site, boundaries, t_ref, priority,
+                                      darkness, min_altitude)
+        blocks = reservations.cut(windows.blocks, events.periodic)
+        windows.reason[events.periodic & (windows.reason == "")] = AT_EVENTS_ONLY
+    order = schedule(priority_weight(priority), np.maximum(duration, 1.0), blocks,
                      length_s, ra_deg=windows.ra, dec_deg=windows.dec, mount=mount,
                      max_seconds=max_seconds, seed=int(seed),
                      max_iterations=None if max_iterations is None else int(max_iterations))
-    order = centre_on_transit(order, windows.blocks, windows.transit)
+    order = centre_on_transit(order, blocks, windows.transit)
     return Plan(site=site, night=boundaries, moon=moon_events(site, boundaries),
                 constraints=constraints, sky=sky, windows=windows, schedule=order,
-                priority=priority, duration_s=duration)
+                priority=priority, duration_s=duration, reservations=reservations)

@@ -7,6 +7,7 @@ stays bounded (a few hundred bytes per star of scratch) for catalogues of any si
 from __future__ import annotations
 
 import os
+import warnings
 from collections import deque
 from concurrent.futures import ThreadPoolExecutor
 from functools import cached_property
@@ -102,6 +103,15 @@ class PositionChunks:
         if targets.has_errors:
             self.names += list(ELLIPSE_COLUMNS)
         self.units = {k: v for k, v in COLUMN_UNITS.items() if k in self.names}
+        # Solar-system rows (core/bodies/) add their columns; DE421 is read only for them.
+        self.has_bodies, self.body_warnings = _has_body_columns(targets), []
+        if self.has_bodies:
+            from .bodies.columns import BODY_COLUMNS_OUT, BODY_UNITS, body_warnings
+            self.names += list(BODY_COLUMNS_OUT)
+            self.units.update(BODY_UNITS)
+            self.body_warnings = body_warnings(targets, ctx)
+            for note in self.body_warnings:
+                warnings.warn(note, stacklevel=3)
 
     @cached_property
     def meta(self) -> dict:
@@ -109,6 +119,8 @@ class PositionChunks:
         meta = _context_meta(self.context)
         # Targets without a known distance get no annual parallax (ledger_parallax NaN).
         meta["targets_distance_unknown"] = int(np.count_nonzero(self.targets.distance_unknown))
+        if self.body_warnings:
+            meta["body_warnings"] = list(self.body_warnings)
         return meta
 
     def spans(self) -> list:
@@ -127,6 +139,8 @@ class PositionChunks:
             _fill_chunk(part, self.context, out, slice(None), ledger=self.ledger)
         if part.has_errors:
             out.update(error_ellipse_at(part, self.context.epoch_jyear))
+        if self.has_bodies:
+            _add_body_rows(out, part, self.context)
         return out
 
     def __iter__(self):
@@ -168,30 +182,32 @@ def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False
     if chunks.use_kernel and not targets.has_errors:
         # The compiled chain in one parallel pass over all targets, straight into the columns.
         out.update(kernels.chain_columns(targets, chunks.context))
+        if chunks.has_bodies:
+            _add_body_rows(out, targets, chunks.context)
     else:
         out.update({c: np.empty(n, dtype=bool if c == "error_lower_bound" else float)
                     for c in chunks.names[1:]})
         for rows, part in zip(chunks.spans(), chunks):
             for c in chunks.names[1:]:
                 out[c][rows] = part[c]
-    body_warnings = _add_body_rows(out, targets, chunks.context)
     result = Positions(out, chunks.context)
     result.meta.update(chunks.meta)
-    if "distance_au" in out:
-        from .bodies.columns import BODY_UNITS
-        result.units.update(BODY_UNITS)
-    if body_warnings:
-        result.meta["body_warnings"] = body_warnings
+    result.units.update(chunks.units)
     return result
 
 
-def _add_body_rows(out: dict, targets: Targets, ctx: AstrometryContext) -> list:
+def _has_body_columns(targets: Targets) -> bool:
+    return any(str(k).strip().lower() in _BODY_KEYS for k in targets.extra)
+
+
+def _add_body_rows(out: dict, targets: Targets, ctx: AstrometryContext) -> None:
     """Solar-system rows (a `body` or element columns, core/bodies/) replace their placeholder
-    star columns and add the body columns; DE421 is loaded only when such a row is present."""
-    if not any(k.strip().lower() in _BODY_KEYS for k in targets.extra):
-        return []
-    from .bodies.columns import fill_body_rows
-    return fill_body_rows(out, targets, ctx)
+    star columns and add the body columns (NaN on star rows, and on every row when none is a
+    body); DE421 is loaded only when such a row is present."""
+    from .bodies.columns import BODY_COLUMNS_OUT, fill_body_rows
+    fill_body_rows(out, targets, ctx)
+    for c in BODY_COLUMNS_OUT:
+        out.setdefault(c, np.full(len(targets), np.nan))
 
 
 _BODY_KEYS = {"body", "semimajor_axis", "perihelion_distance", "eccentricity",

@@ -195,3 +195,28 @@ def _corr_pair(col: str) -> tuple[str, str]:
         if stem.startswith(a + "_") and stem[len(a) + 1 :] in ASTROMETRIC_PARAMETERS:
             return a, stem[len(a) + 1 :]
     raise KeyError(col)
+
+
+def concatenate(parts) -> Targets:
+    """One Targets from several, in order. A column some parts lack is filled: errors and
+    numeric extras with NaN (unknown), text extras with '' (not given)."""
+    parts = [p for p in parts if len(p)]
+    if len(parts) == 1:
+        return parts[0]
+    join = lambda get: np.concatenate([np.asarray(get(p)) for p in parts])  # noqa: E731
+    errors = {k: join(lambda p: p.errors.get(k, np.full(len(p), np.nan)))
+              for k in dict.fromkeys(k for p in parts for k in p.errors)}
+    extra = {}
+    for k in dict.fromkeys(k for p in parts for k in p.extra):
+        numeric = all(np.asarray(p.extra[k]).dtype.kind in "biuf" for p in parts if k in p.extra)
+        blank = np.nan if numeric else ""
+        extra[k] = join(lambda p: p.extra[k] if k in p.extra else
+                        np.full(len(p), blank, dtype=float if numeric else object))
+        if not numeric:
+            extra[k] = extra[k].astype(object)
+    names = None if all(p.name is None for p in parts) else join(lambda p: p.names())
+    return Targets.from_columns(
+        ra=join(lambda p: p.ra), dec=join(lambda p: p.dec), epoch=join(lambda p: p.epoch),
+        pm_ra_cosdec=join(lambda p: p.pm_ra_cosdec), pm_dec=join(lambda p: p.pm_dec),
+        parallax=join(lambda p: p.parallax), radial_velocity=join(lambda p: p.radial_velocity),
+        name=names, errors=errors, extra=extra)

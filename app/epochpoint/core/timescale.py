@@ -30,7 +30,10 @@ from . import earth_orientation
 # Offline for good: astropy never downloads and never refuses an old table, and it takes
 # the leap seconds from the cache (earth_orientation.py) instead of parsing the list again.
 earth_orientation.keep_astropy_offline()
-earth_orientation.install_leap_seconds()
+try:
+    earth_orientation.install_leap_seconds()
+except Exception:  # tables unreadable: astropy's own check runs, and says why, when first needed
+    pass
 
 # An instant this long after the table's last measured value counts as stale (UT1 prediction
 # errors grow to ~10 ms, 0.15" at the equator, after about 90 days: IERS Bulletin A accuracy note).

@@ -22,7 +22,7 @@ from dataclasses import replace
 from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QCursor, QKeySequence, QShortcut
 from PySide6.QtWidgets import (QAbstractItemView, QApplication, QDockWidget, QFrame,
-                               QHBoxLayout, QHeaderView, QLabel, QLineEdit, QMainWindow,
+                               QHBoxLayout, QHeaderView, QLabel, QMainWindow,
                                QMessageBox, QProgressBar, QPushButton, QScrollArea, QSplitter,
                                QTableView, QTabWidget, QToolTip, QVBoxLayout, QWidget)
 
@@ -34,6 +34,7 @@ from . import themes, workers
 from .caution import CautionStrip
 from .document import Document
 from .file_actions import FileActions
+from .filter_box import FilterBox
 from .instant import InstantBar, instant_label, utc_datetime
 from .menus import build_menus
 from .night_bar import NightBar
@@ -117,7 +118,7 @@ class MainWindow(FileActions, QMainWindow):
         self.model = TargetTableModel(self.document, self)
         self.proxy = TargetFilterProxy(self)
         self.proxy.setSourceModel(self.model)
-        self.filter_box = QLineEdit()
+        self.filter_box = FilterBox()  # Esc clears it
         self.filter_box.setPlaceholderText("Filter by name or notes  (Ctrl+F)")
         self.filter_box.setClearButtonEnabled(True)
         self.filter_box.textChanged.connect(self._on_filter_text)

@@ -8,11 +8,13 @@ import datetime as dt
 from dataclasses import replace
 
 from PySide6.QtCore import QDate, Qt, Signal
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QDateEdit, QDoubleSpinBox, QFrame,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QDoubleSpinBox, QFrame,
                                QHBoxLayout, QLabel)
 
 from epochpoint.core.plan import DARKNESS_LEVELS
 from epochpoint.io.planfile import NightSettings
+
+from .date_field import DateField
 
 # Spin-box values that stand for "no limit of this kind" (shown as words).
 MIN_ALT_NONE = -6.0
@@ -28,9 +30,7 @@ class NightBar(QFrame):
         super().__init__(parent)
         self.setObjectName("nightBar")
         self.night = NightSettings(date=dt.date.today().isoformat())
-        self.date = QDateEdit()
-        self.date.setCalendarPopup(True)
-        self.date.setDisplayFormat("yyyy-MM-dd")
+        self.date = DateField()
         self.date.setToolTip("Local date of the evening the night starts")
         self.darkness = QComboBox()
         self.darkness.addItems(list(DARKNESS_LEVELS))

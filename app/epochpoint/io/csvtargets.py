@@ -23,6 +23,7 @@ from functools import partial
 
 import numpy as np
 
+from .bodyfields import has_body_columns
 from .csvcolumns import CsvLines
 from .errors import InputError
 from .filebytes import decode_utf8
@@ -91,13 +92,14 @@ def read_csv_targets(path: str, data: bytes) -> RawTable:
 
 
 def _known_columns(path: str, header_line: int, labels: list, has_rows: bool):
-    """match_columns for the header, with the header's errors; ra and dec are required."""
+    """match_columns for the header, with the header's errors; ra and dec are required unless
+    the file has body or element columns (bodyfields.py)."""
     try:
         known, extra = match_columns(labels)
     except ValueError as err:
         raise InputError(path, str(err), line=header_line) from None
     for needed in ("ra", "dec"):
-        if needed not in known:
+        if needed not in known and not has_body_columns(labels):
             raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})",
                              line=header_line)
     if not has_rows:

@@ -14,7 +14,8 @@ from dataclasses import replace
 
 import numpy as np
 
-from .targetrows import RawColumn, RawTable
+from .bodyfields import filled_column as _filled
+from .targetrows import RawTable
 
 FILLED_COLUMNS = ("ra", "dec", "epoch", "pm_ra_cosdec", "pm_dec", "parallax")
 ERROR_COLUMNS = ("ra_error", "dec_error", "parallax_error", "pm_ra_cosdec_error",
@@ -67,18 +68,3 @@ def fill_hipparcos_rows(raw: RawTable) -> RawTable:
     for name in FILLED_COLUMNS + tuple(c for c in ERROR_COLUMNS if c in raw.columns):
         columns[name] = _filled(raw.columns.get(name), name, len(raw), rows, found[name])
     return replace(raw, columns=columns, row_problems=problems)
-
-
-def _filled(column: RawColumn | None, name: str, n: int, rows: list, values) -> RawColumn:
-    """A copy of the column (or a new, all-empty one) with `values` in `rows`."""
-    if column is None:
-        column = RawColumn(name, np.full(n, np.nan), np.ones(n, dtype=bool))
-    missing = np.array(column.missing, dtype=bool)
-    missing[rows] = False
-    if column.values.dtype.kind in "biuf":
-        cells = np.array(column.values, dtype=float)
-        cells[rows] = values
-        return RawColumn(column.label, cells, missing, column.cell_text)
-    cells = np.array(column.values, dtype=object)
-    cells[rows] = [repr(float(v)) for v in values]  # shortest round-trip text: exact
-    return RawColumn(column.label, cells, missing, column.cell_text)

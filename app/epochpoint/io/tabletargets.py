@@ -20,6 +20,7 @@ from astropy.table import Column, MaskedColumn, Table
 from astropy.time import Time
 
 from .astropytables import load_table, table_bytes
+from .bodyfields import has_body_columns
 from .errors import InputError, quote
 from .targetcolumns import (ASTROMETRY_COLUMNS, DEFAULT_UNITS, UNCERTAINTY_COLUMNS,
                             match_columns)
@@ -102,8 +103,8 @@ def read_table_targets(path: str, data: bytes, fmt: str) -> RawTable:
         known, extra = match_columns(labels)
     except ValueError as err:
         raise InputError(path, str(err)) from None
-    for needed in ("ra", "dec"):
-        if needed not in known:
+    for needed in ("ra", "dec"):  # not needed by body rows (bodyfields.py)
+        if needed not in known and not has_body_columns(labels):
             raise InputError(path, f"has no {needed} column (columns: {', '.join(labels)[:60]})")
     if len(table) == 0:
         raise InputError(path, "has no targets")

@@ -1,7 +1,9 @@
 """Reading and writing target lists: the format follows the file name (or the content).
 
 `.csv` -> CSV, `.ecsv` -> ECSV, `.vot`/`.votable`/`.xml` -> VOTable. Any other name is sniffed:
-`# %ECSV` starts an ECSV file, `<?xml`/`<VOTABLE` a VOTable, anything else is read as CSV.
+`# %ECSV` starts an ECSV file, `<?xml`/`<VOTABLE` a VOTable, lines in the Minor Planet
+Center's one-line elements layouts are orbital elements (read only, catalogues/mpc_elements.py),
+anything else is read as CSV.
 """
 from __future__ import annotations
 
@@ -21,7 +23,8 @@ TARGET_FORMATS = ("csv", "ecsv", "votable")
 
 
 def target_format(path, data: bytes | None = None) -> str | None:
-    """'csv', 'ecsv' or 'votable' from the file name, else from the content; None if unknown."""
+    """'csv', 'ecsv' or 'votable' from the file name, else from the content ('mpc' for
+    orbital elements); None if unknown."""
     fmt = FORMAT_BY_SUFFIX.get(os.path.splitext(os.fspath(path))[1].lower())
     if fmt is not None or data is None:
         return fmt
@@ -30,11 +33,13 @@ def target_format(path, data: bytes | None = None) -> str | None:
         return "ecsv"
     if head.startswith(b"<?xml") or b"<VOTABLE" in head.upper():
         return "votable"
-    return "csv"
+    from .catalogues.mpc_elements import looks_like_mpc
+    return "mpc" if looks_like_mpc(data) else "csv"
 
 
 def read_targets(path, skip_bad_rows: bool = False, on_skip=None) -> Targets:
-    """The targets of a CSV, ECSV or VOTable file, converted to ICRS and validated.
+    """The targets of a CSV, ECSV or VOTable file, converted to ICRS and validated, or the
+    bodies of an MPC orbital-elements file.
 
     Bad content raises InputError (one line: file, line or row, target, column). With
     skip_bad_rows=True each bad row is passed to on_skip(InputError) instead (default: a
@@ -45,6 +50,11 @@ def read_targets(path, skip_bad_rows: bool = False, on_skip=None) -> Targets:
     if not data.strip():
         raise InputError(path, "is empty")
     fmt = target_format(path, data)
+    if fmt == "mpc":  # orbital elements, one body a line
+        from .catalogues.mpc_elements import parse_mpc_elements
+        from .filebytes import decode_utf8
+
+        return parse_mpc_elements(path, decode_utf8(path, data))
     if fmt == "csv":
         raw = read_csv_targets(path, data)
     else:  # astropy.table (about 0.1 s to import) only for the table formats

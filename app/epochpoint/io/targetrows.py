@@ -235,6 +235,7 @@ def warn_skipped(error: InputError) -> None:
 
 def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> Targets:
     """Validated ICRS `Targets` from a RawTable (see module docstring)."""
+    from .bodyfields import fill_body_rows
     from .hipnames import fill_hipparcos_rows  # rows named 'HIP n' without coordinates
 
     raw = fill_hipparcos_rows(raw)
@@ -249,6 +250,8 @@ def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> T
 
     for i, (label, message) in raw.row_problems.items():
         note(i, label, message)
+    # Solar-system rows (a body or elements): cells checked, RA/Dec placeholders given.
+    raw = fill_body_rows(raw, note, message_names)
     values = {}
     for canonical in ASTROMETRY_COLUMNS + UNCERTAINTY_COLUMNS:
         column = raw.columns.get(canonical)

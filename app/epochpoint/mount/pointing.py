@@ -8,6 +8,14 @@ frame bias (ERFA bp06) onto the mean equator and equinox of J2000.0; aberration,
 precession and nutation are then the controller's to apply. The interlocks are the site's
 (core.limits), with the Sun seen from the site (core.export.refusals).
 
+With a pointing model the mount-frame stage (core.pointing_model.mount_frame) turns the
+observed place into where the mount's axes must go and those axes into the coordinates of date
+to send; the J2000 coordinates for them are the target's J2000 place moved by the same small
+offset, rotated from the equator of date to the mean equator of J2000.0 (IAU 2006/2000A: ERFA
+pnm06a and bp06); the aberration left out of that offset changes by under 0.4 arcsec per degree
+of offset (the annual aberration's 20.5 arcsec times the offset in radians). The interlocks then
+judge the sky place and the commanded axes, and say which one they refuse.
+
 Cost: one positions() call for one star plus one Sun place, about 10 ms.
 """
 from __future__ import annotations
@@ -20,6 +28,7 @@ import numpy as np
 from ..core.apparent import apply_parallax, rotate
 from ..core.constants import DEG_TO_RAD, RAD_TO_DEG
 from ..core.export import refusals, sun_separation_deg
+from ..core.pointing_model.mount_frame import mount_axes, place_of_date
 from ..core.positions import positions
 from ..core.site import Site
 from ..core.targets import Targets
@@ -42,6 +51,10 @@ class Pointing:
     dec_observed_deg: float
     sun_separation_deg: float
     refusal: str  # why the interlocks forbid it; '' when allowed
+    # With a pointing model: where the axes must go (ha, dec) and what is sent for them.
+    axes_deg: tuple | None = None
+    command_eod_deg: tuple | None = None  # (RA, Dec) of date
+    command_j2000_deg: tuple | None = None  # (RA, Dec), mean equator and equinox of J2000.0
 
     @property
     def allowed(self) -> bool:
@@ -75,13 +88,52 @@ def _astrometric_j2000(result, one: Targets) -> tuple[float, float]:
     return float(ra[0] * RAD_TO_DEG), float(dec[0] * RAD_TO_DEG)
 
 
-def pointing_for(targets: Targets, site: Site, name: str, when="now") -> Pointing:
-    """The place to send for target `name` at `when`, with the interlocks' verdict."""
+def date_from_j2000(ctx) -> np.ndarray:
+    """Rotation from the mean equator and equinox of J2000.0 to the true equator and equinox
+    of date (ERFA pnm06a times the transpose of the frame bias bp06)."""
+    frame_bias, _, _ = erfa.bp06(*ctx.tt)
+    return ctx.npb_true_of_date @ np.asarray(frame_bias).T
+
+
+def shifted_place(ra_deg, dec_deg, base_from, base_to, rotation) -> tuple[float, float]:
+    """A place near base_from (ra, dec) carried into base_to's frame: base_to plus the small
+    offset from base_from, rotated by `rotation` (see the module docstring)."""
+    def u(ra, dec):
+        return unit_vectors(np.atleast_1d(ra) * DEG_TO_RAD, np.atleast_1d(dec) * DEG_TO_RAD)
+
+    moved = u(*base_to) + np.asarray(rotation) @ (u(ra_deg, dec_deg) - u(*base_from))
+    ra, dec = to_spherical(moved / np.linalg.norm(moved, axis=0))
+    return float(ra[0] * RAD_TO_DEG) % 360.0, float(dec[0] * RAD_TO_DEG)
+
+
+def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None) -> Pointing:
+    """The place to send for target `name` at `when`, with the interlocks' verdict; with a
+    pointing model (core.pointing_model.PointingModel) the place its axes need."""
     one = find_target(targets, name)
     result = positions(one, site, when)
     ra_j2000, dec_j2000 = _astrometric_j2000(result, one)
     sun_deg = sun_separation_deg(site, result.context.time, result["ra_apparent"],
                                  result["dec_apparent"])
+    refusal = str(refusals(result, site, sun_deg)[0])
+    model_fields = {}
+    if model is not None:
+        ctx = result.context
+        # Observed place -> the model's axes -> the coordinates of date for those axes.
+        axes = mount_axes(model, result["ha"], result["dec_observed"], result["alt"],
+                          result["az"], site.latitude)
+        ra_cmd, dec_cmd = place_of_date(axes.ha, axes.dec, ctx.site.last_rad * RAD_TO_DEG)
+        command_eod = (float(ra_cmd[0]), float(dec_cmd[0]))
+        command_j2000 = shifted_place(*command_eod, (result["ra_apparent"][0],
+                                                     result["dec_apparent"][0]),
+                                      (ra_j2000, dec_j2000), date_from_j2000(ctx).T)
+        # The interlocks judge the commanded axes too, and say which place they refuse.
+        sun_axes = sun_separation_deg(site, ctx.time, ra_cmd, dec_cmd)
+        axes_refusal = str(site.interlocks.violations(axes.alt, axes.az, axes.ha, axes.dec,
+                                                      sun_axes)[0])
+        refusal = "; ".join([f"sky place {refusal}"] * bool(refusal)
+                            + [f"commanded axes {axes_refusal}"] * bool(axes_refusal))
+        model_fields = dict(axes_deg=(float(axes.ha[0]), float(axes.dec[0])),
+                            command_eod_deg=command_eod, command_j2000_deg=command_j2000)
     return Pointing(
         name=str(name), time=result.meta["time"],
         ra_apparent_deg=float(result["ra_apparent"][0]),
@@ -89,4 +141,4 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now") -> Pointin
         ra_j2000_deg=ra_j2000, dec_j2000_deg=dec_j2000,
         alt_deg=float(result["alt"][0]), az_deg=float(result["az"][0]),
         ha_deg=float(result["ha"][0]), dec_observed_deg=float(result["dec_observed"][0]),
-        sun_separation_deg=float(sun_deg[0]), refusal=str(refusals(result, site, sun_deg)[0]))
+        sun_separation_deg=float(sun_deg[0]), refusal=refusal, **model_fields)

@@ -558,7 +558,15 @@ def _utc_offset_hours(site: Site, instant: datetime) -> float:
 
 
 def command_place(pointing: Pointing, prop: str) -> tuple[float, float]:
-    """(RA, Dec) in degrees that a command through coordinate property `prop` sends."""
+    """(RA, Dec) in degrees that a command through coordinate property `prop` sends: the
+    model-corrected place when the pointing has one (mount.pointing), else the sky place."""
+    if pointing.command_eod_deg is not None:
+        return pointing.command_eod_deg if prop == EOD_COORD else pointing.command_j2000_deg
+    return sky_place(pointing, prop)
+
+
+def sky_place(pointing: Pointing, prop: str) -> tuple[float, float]:
+    """(RA, Dec) in degrees of the target's own place in the frame of property `prop`."""
     if prop == EOD_COORD:
         return pointing.ra_apparent_deg, pointing.dec_apparent_deg
     return pointing.ra_j2000_deg, pointing.dec_j2000_deg
@@ -571,9 +579,11 @@ def _place_text(prop: str, ra_deg: float, dec_deg: float) -> str:
             f"({FRAME_TEXT[prop]}) via {prop}")
 
 
-def checked_pointing(targets: Targets, site: Site, name: str, when="now") -> Pointing:
-    """The target's place now, or InterlockRefused with the reason (nothing is sent)."""
-    pointing = pointing_for(targets, site, name, when)
+def checked_pointing(targets: Targets, site: Site, name: str, when="now",
+                     model=None) -> Pointing:
+    """The target's place now (with a pointing model, also its commanded axes), or
+    InterlockRefused with the reason (nothing is sent)."""
+    pointing = pointing_for(targets, site, name, when, model=model)
     if not pointing.allowed:
         raise InterlockRefused(name, pointing.refusal)
     return pointing
@@ -598,16 +608,22 @@ def slew_seconds_from_mount(scope: Telescope, pointing: Pointing, site: Site) ->
 
 
 def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
-                  track_s: float, notify: Notify = _silent) -> Pointing:
+                  track_s: float, notify: Notify = _silent, model=None) -> Pointing:
     """The target's place now, refused (InterlockRefused, nothing sent) when the interlocks
     forbid it now, at the estimated end of the slew, or at any instant of the track for
     track_s seconds after it (core.track.track_refusal: the same observed place and limits
-    as the instant check, sampled every second)."""
-    pointing = checked_pointing(targets, site, name)
+    as the instant check, sampled every second). With a pointing model, the track of the
+    commanded axes' place of date is judged as well."""
+    pointing = checked_pointing(targets, site, name, model=model)
     slew_s = slew_seconds_from_mount(scope, pointing, site)
     ctx = make_context(pointing.time, site)
     at_s, why = track_refusal(pointing.ra_apparent_deg, pointing.dec_apparent_deg, site, ctx,
                               0.0, slew_s + track_s)
+    if at_s is None and pointing.command_eod_deg is not None:
+        at_s, why = track_refusal(*pointing.command_eod_deg, site, ctx, 0.0, slew_s + track_s)
+        why = None if why is None else f"commanded axes {why}"
+    elif pointing.command_eod_deg is not None:
+        why = f"sky place {why}"
     if at_s is not None and at_s <= slew_s:
         raise InterlockRefused(name, f"{why} by the end of the slew (estimated {slew_s:.0f} s "
                                      "from the mount's slew rate)")
@@ -622,7 +638,8 @@ def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
 def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
                    sync: bool = False, wait: bool = False, timeout_s: float = 120.0,
                    tolerance_arcsec: float = 2.0, track_s: float = DEFAULT_TRACK_S,
-                   token: int | None = None, notify: Notify = _silent) -> SlewReport:
+                   token: int | None = None, notify: Notify = _silent,
+                   model=None) -> SlewReport:
     """Point the mount at target `name`: interlocks and clocks first, then slew (TRACK) or sync.
 
     The interlocks are checked now, at the estimated end of the slew and over track_s seconds
@@ -635,7 +652,9 @@ def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
     ValueError for a timeout or tolerance out of range and InterlockRefused, both before
     anything is sent; ConnectionLost, IndiTimeout or MountFailed (Alert, a refused mode,
     parked, no such property). Any failure after the motion was sent first sends an abort
-    and says in its message that the mount may still be moving.
+    and says in its message that the mount may still be moving. model: a pointing model
+    (core.pointing_model.PointingModel); the commanded coordinates are then those of the
+    axes it says see the target, and the interlocks judge both places (mount.pointing).
     """
     # Every option is checked before anything is sent.
     timeout_s = checked_wait(timeout_s)
@@ -643,13 +662,13 @@ def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
     track_s = checked_track_seconds(track_s)
     token = scope.begin_command() if token is None else token
     motions_before = scope.motions
-    pointing = _checked(scope, targets, site, name, sync, track_s, notify)
+    pointing = _checked(scope, targets, site, name, sync, track_s, notify, model)
     if not sync:  # a sync only tells the mount where it points: nothing moves
         notify(CAUTION)
     try:
         return _point(scope, targets, site, name, pointing, sync=sync, wait=wait,
                       timeout_s=timeout_s, tolerance_arcsec=tolerance_arcsec, track_s=track_s,
-                      notify=notify, token=token)
+                      notify=notify, token=token, model=model)
     except Exception as err:
         if scope.motions == motions_before:
             raise  # nothing that moves the mount was sent
@@ -657,13 +676,13 @@ def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
 
 
 def _checked(scope: Telescope, targets: Targets, site: Site, name: str, sync: bool,
-             track_s: float, notify: Notify) -> Pointing:
+             track_s: float, notify: Notify, model=None) -> Pointing:
     """The interlocks (a slew: now, at its end and along the track; a sync: now) and the
     clocks, before anything is sent."""
     if sync:
-        pointing = checked_pointing(targets, site, name)
+        pointing = checked_pointing(targets, site, name, model=model)
     else:
-        pointing = checked_track(scope, targets, site, name, track_s, notify)
+        pointing = checked_track(scope, targets, site, name, track_s, notify, model=model)
     scope.check_clock(name, notify)
     return pointing
 
@@ -690,7 +709,7 @@ def _failed_in_motion(scope: Telescope, err: Exception, notify: Notify) -> Mount
 
 def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: Pointing, *,
            sync: bool, wait: bool, timeout_s: float, tolerance_arcsec: float, track_s: float,
-           notify: Notify, token: int) -> SlewReport:
+           notify: Notify, token: int, model=None) -> SlewReport:
     """Send the command, then (with wait) follow it and refine once: see slew_to_target."""
     action = "sync" if sync else "slew"
     stopped = lambda: scope.aborted_since(token)  # noqa: E731
@@ -706,9 +725,15 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
         return SlewReport(commanded_ra_deg=ra_deg, commanded_dec_deg=dec_deg,
                           pointing=pointing, aborted=True, **report)
     started = time.monotonic()
+    if pointing.command_eod_deg is not None:
+        notify(f"Sky place of {name}: "
+               f"{_place_text(command.coordinate_property, *sky_place(pointing, prop))}; "
+               f"with the pointing model its axes go to HA {pointing.axes_deg[0]:.4f} Dec "
+               f"{pointing.axes_deg[1]:.4f} deg, commanded as below.")
     notify(f"{action.capitalize()} {name}: "
-           f"{_place_text(command.coordinate_property, command.ra_deg, command.dec_deg)}; "
-           f"alt {pointing.alt_deg:.2f} az {pointing.az_deg:.2f} deg at {pointing.time}")
+           f"{_place_text(command.coordinate_property, command.ra_deg, command.dec_deg)}"
+           + (" (commanded, pointing model)" if pointing.command_eod_deg is not None else "")
+           + f"; alt {pointing.alt_deg:.2f} az {pointing.az_deg:.2f} deg at {pointing.time}")
     if not wait:
         state = scope.wait_for_answer(command)
         if state == "Alert":
@@ -718,14 +743,14 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
                           pointing=pointing, **report)
 
     state = _follow(scope, command, timeout_s, action, started, notify, stopped)
-    residual = _residual(scope, command, targets, site, name)
+    residual = _residual(scope, command, targets, site, name, model)
     report.update(first_residual_arcsec=residual, residual_arcsec=residual, final_state=state,
                   aborted=stopped())
     # Refine only a slew that ended normally: never move again after an abort.
     if not sync and state == "Ok" and not stopped() and residual > tolerance_arcsec:
         notify(f"Ended {residual:.2f} arcsec from the target (tolerance "
                f"{tolerance_arcsec:g}): one refining slew.")
-        pointing = _checked(scope, targets, site, name, False, track_s, notify)
+        pointing = _checked(scope, targets, site, name, False, track_s, notify, model)
         refine = scope.command(pointing, sync=False, token=token)
         if refine is None:
             notify("The refining slew was stopped by an abort before anything moved.")
@@ -734,7 +759,7 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
             command = refine
             state = _follow(scope, command, timeout_s, "refining slew", time.monotonic(),
                             notify, stopped)
-            residual = _residual(scope, command, targets, site, name)
+            residual = _residual(scope, command, targets, site, name, model)
             report.update(residual_arcsec=residual, final_state=state, refined=True,
                           aborted=stopped())
     v = scope.client.vector(scope.device, command.coordinate_property)
@@ -757,9 +782,10 @@ def _follow(scope: Telescope, command: _Command, timeout_s: float, what: str, st
 
 
 def _residual(scope: Telescope, command: _Command, targets: Targets, site: Site,
-              name: str) -> float:
-    """Reported coordinates against the target's place now, in the command's frame (arcsec)."""
-    now = pointing_for(targets, site, name)
+              name: str, model=None) -> float:
+    """Reported coordinates against the place commanded now (the target's, or with a model
+    its axes'), in the command's frame (arcsec)."""
+    now = pointing_for(targets, site, name, model=model)
     v = scope.client.vector(scope.device, command.coordinate_property)
     ra_deg, dec_deg = command_place(now, command.coordinate_property)
     return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"], ra_deg, dec_deg)

@@ -144,4 +144,15 @@ def fill_body_rows(out: dict, targets, ctx) -> list:
         for c, value in columns.items():
             if c in out:
                 out[c][i] = value[0]
+    # The correction ledger describes a star's chain: not given for bodies.
+    for c in out:
+        if c.startswith("ledger_"):
+            out[c][rows] = np.nan
     return warnings
+
+
+def body_warnings(targets, ctx) -> list:
+    """The warnings of the body rows at the context's instant (elements far from their epoch),
+    without computing their places: a few microseconds a row."""
+    _, sources = sources_of(targets)
+    return [note for source in sources for note in source.warnings(*ctx.tdb)]

@@ -11,12 +11,13 @@ import datetime as dt
 
 import numpy as np
 from PySide6.QtCore import QDate, Qt, QTimer, Signal
-from PySide6.QtWidgets import (QAbstractItemView, QDateEdit, QDoubleSpinBox, QHBoxLayout,
+from PySide6.QtWidgets import (QAbstractItemView, QDoubleSpinBox, QHBoxLayout,
                                QHeaderView, QLabel, QPushButton, QSplitter, QTableView,
                                QVBoxLayout, QWidget)
 
 from ...charts.ellipse_chart import draw_error_ellipse
 from .. import workers
+from ..date_field import DateField
 from .chart_canvas import ChartCanvas
 from .drift_model import OVER_MARK, DriftModel, DriftSortProxy
 from .theme_link import theme_chart_style, watch_theme
@@ -74,9 +75,7 @@ class DriftPanel(QWidget):
         self._tolerance_timer.timeout.connect(self._tolerance_settled)
         self.tolerance_box.editingFinished.connect(self._tolerance_settled)
 
-        self.date_edit = QDateEdit()
-        self.date_edit.setCalendarPopup(True)
-        self.date_edit.setDisplayFormat("yyyy-MM-dd")
+        self.date_edit = DateField()
         self.date_edit.setDateRange(QDate(1000, 1, 1), QDate(3000, 12, 31))
         self.date_edit.setDate(_qdate(dt.datetime.now(dt.timezone.utc).date()))
         self._date_timer = QTimer(self)

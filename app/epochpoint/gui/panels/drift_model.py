@@ -13,6 +13,8 @@ from ...io.angles import format_dec_dms, format_ra_hms
 from ..sorting import SORT_ROLE, ValueSortProxy, sort_value
 
 OVER_MARK = "▲ over"
+# A crossing further from the date shown than this is shown as "never within" it.
+NEVER_WITHIN_YEARS = 1000
 
 # Column key, header, tooltip.
 COLUMNS = (
@@ -120,13 +122,24 @@ class DriftModel(QAbstractTableModel):
 
     def _crossing_text(self, row: int, value) -> str:
         d = self.result["drift"]
+        never = f"never within {NEVER_WITHIN_YEARS} yr"
         if not value:
             # drift() gives no date for a target that does not move or only beyond 10000 years.
-            return "never (no motion)" if d["drift_rate"][row] == 0 else "beyond 10000 yr"
+            return "never (no motion)" if d["drift_rate"][row] == 0 else never
+        if abs(_year(value) - _year(self.result.get("time") or value)) > NEVER_WITHIN_YEARS:
+            return never  # a date that far off says only that it will not matter
         sigma = d["crossing_sigma_days"][row]
-        if not np.isfinite(sigma):
-            return value[:10] + " ± ?"  # the catalogue gives no errors for this motion
+        if not np.isfinite(sigma) or sigma <= 0.0:
+            # No errors for this motion (a zero error is an unknown one, not a perfect one).
+            return value[:10] + " ± ?"
+        if sigma < 0.05:
+            return value[:10] + " ± <0.1 d"
         return value[:10] + (f" ± {sigma:.1f} d" if sigma < 10 else f" ± {sigma:.0f} d")
+
+
+def _year(iso: str) -> int:
+    """The year of an ISO 8601 date (a leading sign allowed)."""
+    return int(iso[:iso.index("-", 1)])
 
 
 class DriftSortProxy(ValueSortProxy):

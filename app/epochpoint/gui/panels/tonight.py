@@ -70,6 +70,9 @@ class TonightPanel(QWidget):
         layout.addWidget(self.summary)
 
         self.canvas.mpl_connect("motion_notify_event", self._on_motion)
+        # The readout describes the point under the mouse: none once it leaves the chart.
+        self.canvas.mpl_connect("figure_leave_event", lambda _: self._clear_readout())
+        self.canvas.mpl_connect("axes_leave_event", lambda _: self._clear_readout())
         self.canvas.mpl_connect("button_press_event", self._on_press)
         self.canvas.mpl_connect("draw_event", lambda _: self._align_timeline())
         self.timeline.block_clicked.connect(self.target_clicked)
@@ -179,6 +182,10 @@ class TonightPanel(QWidget):
             airmass_text = f"airmass {airmass:.2f}" if np.isfinite(airmass) else "below horizon"
             text += f"   {self.plan.windows.names[index]}: altitude {alt:.1f}°, {airmass_text}"
         self.readout.setText(text)
+
+    def _clear_readout(self) -> None:
+        if self.plan is not None:
+            self.readout.setText(HINT)
 
     def _on_press(self, event) -> None:
         if event.button != 1 or self.plan is None:
