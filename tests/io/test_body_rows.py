@@ -139,3 +139,13 @@ def test_table_formats_read_body_rows(tmp_path, suffix):
     assert np.isfinite(got["distance_au"]).all()
     want = positions(body_targets({"body": ["mars"]}, ["Red"]), None, WHEN)
     assert got["ra_apparent"][0] == want["ra_apparent"][0]
+
+
+def test_demo_bodies_file_reads(pytestconfig):
+    """The shipped demo list of solar-system targets (invented minor bodies, a planet and
+    the Moon) reads, and every row is a body."""
+    demo = pytestconfig.rootpath / "sample_targets" / "loma_candil_bodies.csv"
+    targets = read_targets(demo)
+    assert len(targets) == 5
+    got = positions(targets, None, "2027-01-20T03:00:00Z")
+    assert np.isfinite(got["distance_au"]).all()

@@ -114,3 +114,20 @@ def test_a_star_that_is_neither_a_file_nor_a_hipparcos_name_is_one_line(tmp_path
     err = capsys.readouterr().err
     assert code == 2 and "'Cal1' is neither a file nor a Hipparcos name" in err
     assert len(err.strip().splitlines()) == 1 and not (tmp_path / "s.csv").exists()
+
+
+def test_a_pointing_stars_list_is_read_by_its_hipparcos_names(tmp_path, capsys, monkeypatch):
+    monkeypatch.setenv("EPOCHPOINT_CACHE_DIR", str(tmp_path / "cache"))
+    # The shape of `pointing stars --format csv`: names, no ra/dec columns.
+    stars = tmp_path / "stars.csv"
+    stars.write_text("order,name,hp_mag,ra_apparent,dec_apparent\n1,HIP 32349,-1.09,101.5,-16.7\n")
+    code = main(["pointing", "record", str(stars), "--site=50,8,300", "--indi", "127.0.0.1:9",
+                 "--samples", str(tmp_path / "s.csv"), "--no-prompt", "--connect-timeout", "1"])
+    err = capsys.readouterr().err
+    assert code == 4, err  # the names were accepted; only the (absent) server failed
+    unknown = tmp_path / "unknown.csv"
+    unknown.write_text("order,name\n1,HIP 999999\n")
+    code = main(["pointing", "record", str(unknown), "--site=50,8,300", "--indi",
+                 "127.0.0.1:9", "--samples", str(tmp_path / "s.csv"), "--no-prompt"])
+    err = capsys.readouterr().err
+    assert code == 2 and "HIP 999999" in err and len(err.strip().splitlines()) == 1

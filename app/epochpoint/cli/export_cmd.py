@@ -22,7 +22,10 @@ def add_parser(sub) -> None:
     common.add_time_argument(p)
     p.add_argument("--frame", required=True, choices=FRAMES,
                    help="apparent: true equator and equinox of date; icrs: propagated ICRS at "
-                        "TIME; observed: refracted alt/az and HA/Dec at the site")
+                        "TIME; observed: refracted alt/az and HA/Dec at the site; mount: "
+                        "where the mount's axes must go by a pointing model (--model)")
+    p.add_argument("--model", metavar="MODEL.json",
+                   help="the pointing model (epochpoint pointing fit) for --frame mount")
     p.add_argument("--all", action="store_true",
                    help="also write the refused targets, with a 'refused' column giving why")
     within = checks.number(0.0, MAX_TOLERANCE_ARCSEC, lo_open=True, hi_open=True, unit="arcsec")
@@ -38,8 +41,17 @@ def add_parser(sub) -> None:
 def run(args) -> int:
     targets = common.load_targets(args)
     site = common.load_site(args)
+    model = None
+    if args.model or args.frame == "mount":
+        if args.frame != "mount" or not args.model:
+            raise ValueError("--model and --frame mount go together: the mount frame is the "
+                             "model-corrected place")
+        from .pointing_cmd import load_model
+
+        model = load_model(args.model)
     table = export_positions(targets, site, args.at, args.frame, include_all=args.all,
-                             tolerance_arcsec=args.valid_within)
+                             tolerance_arcsec=args.valid_within, model=model,
+                             model_source=args.model or "")
     refused = table.meta["targets_refused"]
     if refused and not args.all:
         print(f"epochpoint: {refused} target(s) refused by the site's interlocks were left out "

@@ -39,6 +39,10 @@ def add_parser(sub) -> None:
                    help="smallest distance from the Moon while it is up (default 0: none)")
     p.add_argument("--moon-scaled", action="store_true",
                    help="scale the Moon distance with the Moon's illuminated fraction")
+    p.add_argument("--solar-filter-fitted", action="store_true",
+                   help="declare a full-aperture solar filter fitted, so the Sun may be "
+                        "planned (as the site file's [safety] solar_filter_fitted = true); "
+                        "a caution is shown every time")
     p.add_argument("--schedule-seconds", type=checks.number(0.0, MAX_SCHEDULE_SECONDS, unit="s"),
                    default=SCHEDULE_SECONDS, metavar="S",
                    help=f"upper limit on the time the scheduler may spend improving the order "
@@ -59,12 +63,14 @@ def add_parser(sub) -> None:
 
 def run(args) -> int:
     targets = common.load_targets(args)
-    site = common.load_site(args)
+    site = _with_solar_option(common.load_site(args), args)
+    events = _events(targets, args)
     result = plan(targets, site, args.night, darkness=args.darkness,
                   min_altitude=args.min_altitude, max_airmass=args.max_airmass,
                   moon_separation=args.moon_separation, moon_scale=args.moon_scaled,
                   max_seconds=args.schedule_seconds, seed=args.seed,
-                  max_iterations=args.schedule_iterations, events=_events(targets, args))
+                  max_iterations=args.schedule_iterations, events=events,
+                  time_constraints=_time_constraints(targets, events, args))
     if args.chart:
         from ..charts import save_night_chart
         save_night_chart(result, args.chart, top_n=args.chart_targets)
@@ -79,12 +85,32 @@ def run(args) -> int:
     return 0
 
 
+def _with_solar_option(site, args):
+    """The site with --solar-filter-fitted applied; with the solar option on (flag or site
+    file) the caution goes to standard error on every run."""
+    from dataclasses import replace
+
+    from ..core.limits import SOLAR_CAUTION
+    if args.solar_filter_fitted:
+        site = replace(site, interlocks=replace(site.interlocks, solar_filter_fitted=True))
+    if site.interlocks.solar_filter_fitted:
+        print(f"epochpoint: {SOLAR_CAUTION}", file=sys.stderr)
+    return site
+
+
 def _events(targets, args):
     """The targets' event ephemerides when the file has event columns, else None."""
     if "event_epoch" not in targets.extra:
         return None
     from ..io.eventfields import event_ephemerides
     return event_ephemerides(targets, args.targets)
+
+
+def _time_constraints(targets, events, args):
+    """The targets' not_before/not_after and phase windows when the file has such columns,
+    else None."""
+    from ..io.timeconstraintfields import time_constraints
+    return time_constraints(targets, events, args.targets)
 
 
 def _write(args, text: str) -> None:
@@ -137,6 +163,9 @@ def _people(result, data) -> str:
     night, moon = data["night"], data["moon"]
     lines = [f"Night of {data['date']} at {data['site']} ({data['darkness']} darkness)",
              common.zone_line(result.site), ""]
+    if result.site.interlocks.solar_filter_fitted:
+        from ..core.limits import SOLAR_CAUTION
+        lines[2:2] = [SOLAR_CAUTION]
     for key in night:
         lines.append(f"  {key.replace('_', ' '):<28} {_local(result, night[key])}")
     lit = moon.get("illumination")

@@ -247,14 +247,35 @@ def _record_stars(given):
     from ..io.catalogues.hipparcos import hipparcos_number, hipparcos_stars
 
     if len(given) == 1 and os.path.isfile(given[0]):
-        targets = read_targets(given[0])
-        return targets, [str(n) for n in targets.names()]
+        listed = _hipparcos_names_only(given[0])
+        if listed is None:
+            targets = read_targets(given[0])
+            return targets, [str(n) for n in targets.names()]
+        given = listed
     numbers = [hipparcos_number(n) for n in given]
     if None in numbers:
         bad = given[numbers.index(None)]
         raise ValueError(f"{bad!r} is neither a file nor a Hipparcos name like 'HIP 87937'")
     targets = hipparcos_stars(numbers)
     return targets, [str(n) for n in targets.names()]
+
+
+def _hipparcos_names_only(path):
+    """The name column of a CSV file without an ra column (a `pointing stars` list), else
+    None (a target list, read as such)."""
+    import csv
+
+    try:
+        with open(path, encoding="utf-8-sig", newline="") as handle:
+            rows = [r for r in csv.reader(handle)
+                    if r and any(c.strip() for c in r) and not r[0].lstrip().startswith("#")]
+    except (UnicodeDecodeError, OSError):
+        return None
+    labels = [c.strip().lower() for c in rows[0]] if rows else []
+    if "ra" in labels or "name" not in labels:
+        return None
+    j = labels.index("name")
+    return [r[j].strip() for r in rows[1:] if j < len(r)]
 
 
 def _existing_samples(path) -> list[dict]:
@@ -317,8 +338,8 @@ def _record(args, say, open_scope) -> int:
                 rows.append(sample)
                 write_samples(args.samples, rows)
                 recorded += 1
-                say(f"Recorded {name}: mount minus star "
-                    f"{wrap_ha(sample['ha_mount'] - sample['ha_target']) * 3600.0:+.1f} arcsec in hour "
+                dha = wrap_ha(sample["ha_mount"] - sample["ha_target"])
+                say(f"Recorded {name}: mount minus star {dha * 3600.0:+.1f} arcsec in hour "
                     f"angle, {(sample['dec_mount'] - sample['dec_target']) * 3600.0:+.1f} arcsec "
                     f"in declination.")
         except KeyboardInterrupt:

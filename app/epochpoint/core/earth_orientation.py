@@ -223,6 +223,8 @@ class _OfflineOnImport(importlib.abc.MetaPathFinder):
         def exec_module(module):
             run_module(module)
             _offline(module)
+            if self in sys.meta_path:  # its work is done
+                sys.meta_path.remove(self)
 
         spec.loader.exec_module = exec_module
         return spec

@@ -7,7 +7,12 @@ Frames:
   controller's EQUATORIAL_EOD_COORD takes);
 - icrs: the rigorously propagated barycentric ICRS place at the instant (catalogue-style
   coordinates with the proper motion applied);
-- observed: refracted altitude/azimuth and hour angle/declination at the site.
+- observed: refracted altitude/azimuth and hour angle/declination at the site;
+- mount: the observed place through a fitted pointing model (core.pointing_model.mount_frame):
+  where the mount's axes must go (ha_mount, dec_mount) and the right ascension of date that
+  brings a controller's axes there (ra_mount, with dec_mount; what EQUATORIAL_EOD_COORD takes
+  from a controller without a model of its own). The interlocks then judge the sky place and
+  the axes, and say which.
 
 Interlocks: a target is refused when the site's interlocks (core.limits) forbid it at the
 instant; the Sun's place for the avoidance check is the topocentric apparent place of date
@@ -20,7 +25,8 @@ long until the exported coordinates of the fastest-moving target change by more 
 tolerance, from a finite difference of the same computation (positions at the instant and one
 step later): one hour for the apparent and ICRS places (space motion, aberration, precession
 and nutation are slow and smooth over an hour), ten seconds for the observed place (the sky
-turns about 15 arcsec per second, common practice).
+turns about 15 arcsec per second, common practice), and for the mount frame, whose axes
+follow the sky's turning.
 """
 from __future__ import annotations
 
@@ -33,9 +39,10 @@ import numpy as np
 from astropy.time import TimeDelta
 
 from .columns import ColumnTable
-from .constants import DEG_TO_RAD, RAD_TO_ARCSEC
+from .constants import DEG_TO_RAD, RAD_TO_ARCSEC, RAD_TO_DEG
 from .drift import MAX_TOLERANCE_ARCSEC
 from .limits import MOUNT_TYPE_NAMES
+from .pointing_model.mount_frame import mount_axes, place_of_date
 from .positions import COLUMN_UNITS, positions
 from .ranges import checked
 from .site import Site
@@ -44,7 +51,7 @@ from .targets import Targets
 from .timescale import iso_z, parse_time
 from .vectors import separation, unit_vectors
 
-FRAMES = ("apparent", "icrs", "observed")
+FRAMES = ("apparent", "icrs", "observed", "mount")
 EXPORT_FORMATS = ("csv", "json", "votable")
 # Exported columns per frame (names and units as in core.positions).
 FRAME_COLUMNS = {
@@ -52,14 +59,16 @@ FRAME_COLUMNS = {
     "icrs": ("ra_propagated", "dec_propagated", "pm_ra_cosdec_propagated",
              "pm_dec_propagated"),
     "observed": ("alt", "az", "ha", "dec_observed"),
+    "mount": ("ra_mount", "dec_mount", "ha_mount"),
 }
 # Finite-difference steps for the validity window, seconds.
-VALIDITY_STEP_S = {"apparent": 3600.0, "icrs": 3600.0, "observed": 10.0}
+VALIDITY_STEP_S = {"apparent": 3600.0, "icrs": 3600.0, "observed": 10.0, "mount": 10.0}
 # Pairs of exported (longitude, latitude) columns whose on-sky motion limits the validity.
 _MOVING_PAIRS = {
     "apparent": (("ra_apparent", "dec_apparent"),),
     "icrs": (("ra_propagated", "dec_propagated"),),
     "observed": (("az", "alt"), ("ha", "dec_observed")),
+    "mount": (("ha_mount", "dec_mount"),),
 }
 _SPACE_MOTION = ("space motion from the catalogue epoch (rigorous propagation of position, "
                  "proper motion, parallax and radial velocity)")
@@ -71,6 +80,10 @@ CORRECTIONS = {
             "precession or nutation",
     "observed": f"{_SPACE_MOTION}; {_APPARENT_STEPS}; Earth rotation and polar motion; "
                 "diurnal aberration; atmospheric refraction",
+    "mount": f"{_SPACE_MOTION}; {_APPARENT_STEPS}; Earth rotation and polar motion; diurnal "
+             "aberration; atmospheric refraction; the pointing model's terms (observed place "
+             "-> mount axes); the axes' hour angle as right ascension of date (local apparent "
+             "sidereal time minus hour angle)",
 }
 
 
@@ -95,6 +108,28 @@ def refusals(result, site: Site, sun_deg=None) -> np.ndarray:
                                       result["dec_observed"], sun_deg)
 
 
+def mount_columns(result, site: Site, model) -> tuple[ColumnTable, np.ndarray]:
+    """The mount frame of a positions() result (name, ra_mount, dec_mount, ha_mount, degrees)
+    by a pointing model, and why the interlocks refuse each target's axes ('' if allowed)."""
+    axes = mount_axes(model, result["ha"], result["dec_observed"], result["alt"],
+                      result["az"], site.latitude)
+    ra, dec = place_of_date(axes.ha, axes.dec, result.context.site.last_rad * RAD_TO_DEG)
+    sun_deg = sun_separation_deg(site, result.context.time, ra, dec)
+    why = site.interlocks.violations(axes.alt, axes.az, axes.ha, axes.dec, sun_deg)
+    table = ColumnTable({"name": result["name"], "ra_mount": ra, "dec_mount": dec,
+                         "ha_mount": axes.ha})
+    return table, why
+
+
+def _both_places(sky, axes) -> np.ndarray:
+    """One reason per target naming which place the interlocks refuse: the sky place, the
+    commanded axes, or both."""
+    out = np.full(sky.shape, "", dtype=object)
+    for k, (a, b) in enumerate(zip(sky, axes)):
+        out[k] = "; ".join([f"sky place {a}"] * bool(a) + [f"commanded axes {b}"] * bool(b))
+    return out
+
+
 def _motion_arcsec(frame: str, now, later) -> np.ndarray:
     """Largest on-sky change (arcsec) of each target's exported coordinate pairs."""
     largest = np.zeros(now.nrows)
@@ -106,10 +141,11 @@ def _motion_arcsec(frame: str, now, later) -> np.ndarray:
 
 
 def validity(targets: Targets, site: Site, when, result, frame: str,
-             tolerance_arcsec: float):
+             tolerance_arcsec: float, model=None):
     """(seconds until the fastest target moves by the tolerance, its name, its rate "/s).
 
-    result: the positions of `targets` at `when`. The rate is the on-sky change of the
+    result: the positions of `targets` at `when` (the mount frame's columns for frame
+    'mount', with the model that made them). The rate is the on-sky change of the
     exported coordinates over VALIDITY_STEP_S divided by the step. Seconds is inf when
     nothing moves (or there are no targets).
     """
@@ -119,7 +155,10 @@ def validity(targets: Targets, site: Site, when, result, frame: str,
     later_time = parse_time(when) + TimeDelta(step_s, format="sec")
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the staleness warning was given for the instant
-        later = positions(targets, site if frame == "observed" else None, later_time)
+        later = positions(targets, site if frame in ("observed", "mount") else None,
+                          later_time)
+        if frame == "mount":
+            later, _ = mount_columns(later, site, model)
     rate = _motion_arcsec(frame, result, later) / step_s
     fastest = int(np.argmax(rate))
     seconds = tolerance_arcsec / rate[fastest] if rate[fastest] > 0.0 else float("inf")
@@ -131,6 +170,10 @@ def _frame_text(frame: str, time_iso: str, site: Site) -> str:
         return f"true equator and equinox of date {time_iso}"
     if frame == "icrs":
         return f"ICRS, epoch {time_iso} (propagated)"
+    if frame == "mount":
+        return (f"mount axes (hour angle, declination) by the pointing model, and the right "
+                f"ascension of date that commands them at {time_iso}, from the observed place "
+                f"({_frame_text('observed', time_iso, site)})")
     if site.pressure == 0.0:
         weather = "no refraction (pressure 0)"
     else:
@@ -152,10 +195,13 @@ def _interlocks_text(site: Site) -> str:
 
 
 def export_positions(targets: Targets, site: Site, when, frame: str, include_all: bool = False,
-                     tolerance_arcsec: float = 1.0) -> ColumnTable:
+                     tolerance_arcsec: float = 1.0, model=None,
+                     model_source: str = "") -> ColumnTable:
     """Coordinates to hand to a telescope controller, with their metadata.
 
-    frame: 'apparent', 'icrs' or 'observed'. Targets the interlocks refuse at `when` are left
+    frame: 'apparent', 'icrs', 'observed' or 'mount' (which needs `model`, a
+    core.pointing_model.PointingModel; model_source names its file in the meta, with its
+    figures). Targets the interlocks refuse at `when` are left
     out unless include_all, which keeps them with a `refused` column giving the reason ('' for
     allowed targets). meta holds time, frame, frame_description, corrections, site, mount
     type, interlocks and when they were checked, and the validity window (valid_for_s,
@@ -166,14 +212,21 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
         raise ValueError(f"frame {frame!r} is not one of {', '.join(FRAMES)}")
     tolerance = checked(tolerance_arcsec, "tolerance", 0.0, MAX_TOLERANCE_ARCSEC, lo_open=True,
                         hi_open=True, unit="arcsec")
+    if frame == "mount" and model is None:
+        raise ValueError("the mount frame needs a pointing model (--model MODEL.json, from "
+                         "epochpoint pointing fit)")
     result = positions(targets, site, when)
     reasons = refusals(result, site)
+    table = result
+    if frame == "mount":
+        table, axes_reasons = mount_columns(result, site, model)
+        reasons = _both_places(reasons, axes_reasons)
     keep = np.ones(len(targets), bool) if include_all else reasons == ""
     rows = np.flatnonzero(keep)
     exported = targets[rows]
-    shown = result.select(rows)
+    shown = table.select(rows)
     instant = result.context.time
-    seconds, fastest, rate = validity(exported, site, instant, shown, frame, tolerance)
+    seconds, fastest, rate = validity(exported, site, instant, shown, frame, tolerance, model)
 
     columns = {"name": shown["name"]}
     columns.update({c: shown[c] for c in FRAME_COLUMNS[frame]})
@@ -196,10 +249,20 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
                 tolerance_arcsec=tolerance)
     meta.update(_validity_meta(frame, instant, seconds, fastest, rate, tolerance,
                                exported=len(rows) > 0))
+    if frame == "mount":
+        meta.update(model_file=model_source, model_mount_type=model.mount_type,
+                    model_terms=", ".join(f"{n} {v:.2f} arcsec" for n, v in model.values.items()),
+                    model_rms_before_arcsec=_finite_or_none(model.rms_before_arcsec),
+                    model_rms_after_arcsec=_finite_or_none(model.rms_after_arcsec),
+                    model_samples=model.samples)
     if "earth_orientation_warning" in result.meta:
         meta["earth_orientation_warning"] = result.meta["earth_orientation_warning"]
-    units = {c: COLUMN_UNITS[c] for c in FRAME_COLUMNS[frame]}
+    units = {c: COLUMN_UNITS.get(c, "deg") for c in FRAME_COLUMNS[frame]}
     return ColumnTable(columns, meta, units)
+
+
+def _finite_or_none(value: float):
+    return float(value) if np.isfinite(value) else None
 
 
 def _validity_meta(frame, t, seconds, fastest, rate, tolerance, exported: bool) -> dict:
@@ -209,12 +272,13 @@ def _validity_meta(frame, t, seconds, fastest, rate, tolerance, exported: bool) 
         why = "no exported target moves in this frame" if exported else "no target exported"
         return {"valid_for_s": None, "valid_until": "unlimited", "validity_basis": why,
                 "validity_scope": scope}
-    per = "arcsec per second" if frame == "observed" else "arcsec per hour"
-    shown_rate = rate if frame == "observed" else rate * 3600.0
+    turning = frame in ("observed", "mount")
+    per = "arcsec per second" if turning else "arcsec per hour"
+    shown_rate = rate if turning else rate * 3600.0
     basis = (f"{tolerance:g} arcsec / {shown_rate:.6g} {per}, the largest on-sky change of "
              f"the exported coordinates (target {fastest}) over "
              f"{VALIDITY_STEP_S[frame]:g} s")
-    if frame == "observed":
+    if turning:
         basis = "the sky turns about 15 arcsec per second: " + basis
     until = iso_z(t + TimeDelta(min(seconds, 1e4 * 86400.0 * 365.25), format="sec"))
     return {"valid_for_s": seconds, "valid_until": until, "validity_basis": basis,
@@ -245,7 +309,8 @@ def export_text(table: ColumnTable, format: str) -> str:
 
 
 _PARAM_UNITS = {"tolerance_arcsec": "arcsec", "valid_for_s": "s", "latitude": "deg",
-                "longitude": "deg", "height": "m"}
+                "longitude": "deg", "height": "m", "model_rms_before_arcsec": "arcsec",
+                "model_rms_after_arcsec": "arcsec"}
 
 
 def _votable_text(table: ColumnTable) -> str:

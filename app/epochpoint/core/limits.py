@@ -10,6 +10,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 MOUNT_TYPES = ("equatorial", "german", "altaz")
+# Shown every time the Sun is a target with the solar option on (common practice of the trade).
+SOLAR_CAUTION = ("CAUTION: solar option on, the Sun may be a target. Never look through or "
+                 "point an unfiltered telescope or finder at the Sun: blindness is instant and "
+                 "permanent. Check the full-aperture solar filter is fitted and secured, and "
+                 "cap the finder.")
+SUN_REFUSED = "the Sun: refused by the interlocks (no solar filter declared fitted)"
 # How each mount type is named to people (the trade's names, common practice).
 MOUNT_TYPE_NAMES = {"equatorial": "fork equatorial", "german": "German equatorial",
                     "altaz": "alt-az"}
@@ -134,13 +140,22 @@ class MountLimits:
 
 @dataclass(frozen=True)
 class Interlocks:
-    """Limits the site enforces before any motion, with Sun avoidance (radius in degrees)."""
+    """Limits the site enforces before any motion, with Sun avoidance (radius in degrees).
+
+    The Sun as a target is always refused unless `solar_filter_fitted` says a full-aperture
+    solar filter is on the telescope (off by default); with it on, SOLAR_CAUTION is shown
+    every time the Sun is planned or pointed at.
+    """
 
     mount: MountLimits = field(default_factory=MountLimits)
     horizon: HorizonMask | None = None
     sun_avoidance: float = 30.0
+    solar_filter_fitted: bool = False
 
     def __post_init__(self):
+        if not isinstance(self.solar_filter_fitted, bool):
+            raise LimitError("solar_filter_fitted", f"{self.solar_filter_fitted!r} must be "
+                             "true or false")
         if not (isinstance(self.sun_avoidance, (int, float)) and
                 0.0 <= self.sun_avoidance <= 90.0):
             raise LimitError("sun_avoidance", f"{self.sun_avoidance!r} must be in [0, 90] degrees")

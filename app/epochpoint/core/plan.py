@@ -199,7 +199,8 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
          moon_separation: float = 0.0, moon_scale: bool = False,
          max_seconds: float = SCHEDULE_SECONDS, seed: int = SCHEDULE_SEED,
          max_iterations: int | None = SCHEDULE_ITERATIONS,
-         mount_position: tuple[float, float] | None = None, events=None) -> Plan:
+         mount_position: tuple[float, float] | None = None, events=None,
+         time_constraints=None) -> Plan:
     """Plan the local night starting on `night` (date or 'YYYY-MM-DD') at `site`.
 
     Altitudes are observed (refracted) altitudes with the site's weather; pressure 0 turns
@@ -209,6 +210,9 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
     from `mount_position`, the (hour angle, declination) in degrees the mount reports.
     events: the targets' EventEphemerides (io.eventfields.event_ephemerides) or None; the
     night's observable events then get fixed-time blocks (plan_events.py).
+    time_constraints: the targets' not_before/not_after and phase windows
+    (io.timeconstraintfields.time_constraints) or None; windows, reserved events and the
+    schedule keep inside them (time_constraints.py).
     """
     if darkness not in DARKNESS_LEVELS:
         raise ValueError(f"darkness must be one of {', '.join(DARKNESS_LEVELS)}, "
@@ -239,11 +243,16 @@ def plan(targets: Targets, site: Site, night, *, darkness: str = "astronomical",
                   german=limits.mount_type == "german", latitude_deg=site.latitude,
                   lst_start_deg=float(windows.geometry.local_sidereal_deg(0.0)),
                   park_ha_deg=park_ha, park_dec_deg=park_dec)
+    allowed = None
+    if time_constraints is not None:
+        from .time_constraints import restrict_windows
+        allowed = restrict_windows(windows, time_constraints, targets, site, t_ref, length_s)
+        events = time_constraints.reserved_events(events)
     reservations, blocks = None, windows.blocks
     if events is not None and events.periodic.any():
         from .plan_events import AT_EVENTS_ONLY, reserve_events
         reservations = reserve_events(targets, events, site, boundaries, t_ref, priority,
-                                      darkness, min_altitude)
+                                      darkness, min_altitude, allowed)
         blocks = reservations.cut(windows.blocks, events.periodic)
         windows.reason[events.periodic & (windows.reason == "")] = AT_EVENTS_ONLY
     order = schedule(priority_weight(priority), np.maximum(duration, 1.0), blocks,

@@ -61,8 +61,10 @@ class Reservations:
 
 def reserve_events(targets: Targets, eph: EventEphemerides, site: Site,
                    boundaries: NightBoundaries, t_ref, priority: np.ndarray, darkness: str,
-                   min_altitude: float | None) -> Reservations:
-    """The night's fixed-time blocks (see module); times in seconds from t_ref."""
+                   min_altitude: float | None, allowed: list | None = None) -> Reservations:
+    """The night's fixed-time blocks (see module); times in seconds from t_ref. allowed: per
+    target, the intervals its time constraints allow (time_constraints.py; None: any time);
+    an event whose block is not wholly inside them is not reserved."""
     mount = site.interlocks.mount
     pad_s = mount.settle + 180.0 / mount.slew_rate
     if not eph.periodic.any():
@@ -76,6 +78,9 @@ def reserve_events(targets: Targets, eph: EventEphemerides, site: Site,
     end_s = (found.mid_tt + half_d - ref_tt) * 86400.0
     blocks = [FixedBlock(int(i), int(c), str(k), float(s), float(e), str(o)) for i, c, k, s, e, o
               in zip(rows, found["cycle"], found["kind"], start_s, end_s, found["observable"])]
+    if allowed is not None:
+        from .time_constraints import inside
+        blocks = [b for b in blocks if inside(allowed[b.index], b.start_s, b.end_s)]
     # Higher priority first (1 is highest), then the earlier event.
     blocks.sort(key=lambda b: (priority[b.index], b.start_s))
     fixed, collisions = [], []

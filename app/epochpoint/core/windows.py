@@ -7,6 +7,12 @@ horizon mask's crossings are found to 0.1 s, however narrow its features
 (horizon_crossings.py). The Moon separation (while the Moon is above the horizon; optionally
 scaled with its illumination) and Sun avoidance are sampled every `sample_step` seconds and
 their edges refined by bisection to about a second. Times are seconds from the night's reference instant.
+
+Solar-system bodies move in a night, so they leave the closed form: their places are sampled
+along the night (body_track.py) and their altitude and hour-angle limits are found by the same
+sampling and bisection as the sampled constraints, with the Sun, Moon and horizon checks along
+the moving track. The Sun as a target is refused unless the site's interlocks say a solar
+filter is fitted (limits.Interlocks.solar_filter_fitted).
 """
 from __future__ import annotations
 
@@ -14,9 +20,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from functools import partial
+
 from . import intervals as iv
+from .body_track import build_body_track
 from .constants import RAD_TO_DEG
 from .horizon_crossings import mask_clear_intervals
+from .limits import SUN_REFUSED
 from .horizon_geometry import (SIDEREAL_DEG_PER_S, altaz_from_ha, altitude_for_airmass,
                                ha_at_altitude, observed_altitude, true_altitude_for_observed)
 from .positions import positions
@@ -103,12 +113,31 @@ class _Geometry:
         self.last_mid_deg = float(ctx.site.last_rad * RAD_TO_DEG)
         s = ctx.site
         self.refraction = (s.refa, s.refb, s.refraction_join, s.refraction_horizon)
+        # Bodies (the Moon, planets, minor bodies): sampled along the night, not fixed.
+        self.track = build_body_track(targets, site, sky)
+        self.moving = (np.zeros(len(targets), dtype=bool) if self.track is None
+                       else self.track.slot >= 0)
+
+    def hadec(self, idx, t):
+        """Hour angle and declination of date (deg) of targets idx at times t (broadcasting):
+        a star's hour angle grows at the sidereal rate, a body follows its track."""
+        ha = self.ha_mid[idx] + SIDEREAL_DEG_PER_S * (t - self.t_mid)
+        if self.track is None:
+            return ha, self.dec[idx]
+        return self.track.at(idx, t, ha, self.dec[idx])
 
     def ha(self, idx, t):
-        return self.ha_mid[idx] + SIDEREAL_DEG_PER_S * (t - self.t_mid)
+        return self.hadec(idx, t)[0]
+
+    def radec(self, idx, t):
+        """Apparent right ascension and declination of date (deg) of targets idx at t."""
+        if self.track is None:
+            return self.ra[idx], self.dec[idx]
+        ha, dec = self.hadec(idx, t)
+        return self.local_sidereal_deg(t) - ha, dec
 
     def observed_altaz(self, idx, t):
-        alt, az = altaz_from_ha(self.ha(idx, t), self.dec[idx], self.lat)
+        alt, az = altaz_from_ha(*self.hadec(idx, t), self.lat)
         return observed_altitude(alt, *self.refraction), az
 
     def local_sidereal_deg(self, t):
@@ -153,6 +182,8 @@ def observable_windows(targets: Targets, site: Site, sky: SkyTrack, dark: list,
     for broken, reason in rules:
         reasons[(reasons == "") & broken] = reason
     windows = _interval_lists(allowed, reasons == "", dark)
+    if geo.track is not None:
+        _moving_windows(geo, checks, limit, german, dark, windows, reasons)
     checks.apply(windows, reasons)
     return TargetWindows(names=targets.names(), windows=[iv.union(w) for w in windows],
                          blocks=windows, transit=transit,
@@ -210,6 +241,45 @@ def _ha_windows(geo: _Geometry, h0: np.ndarray, east: float, west: float,
     return _Candidates(np.nan_to_num(start, nan=np.inf), end)
 
 
+def _moving_windows(geo: _Geometry, checks, limit: float, meridian_limit: float | None,
+                    dark: list, windows: list, reasons: np.ndarray) -> None:
+    """Windows of the bodies, in place: the altitude limit and the mount's hour-angle range
+    (a German mount's two overlapping ranges around its flip, as in _ha_windows) tested on
+    samples along each body's track and refined by bisection (_SampledChecks._allowed); the
+    Sun is refused unless the site declares a solar filter fitted."""
+    idx = np.flatnonzero(geo.moving)
+    mount = geo.site.interlocks.mount
+    east, west = mount.ha_east * 15.0, mount.ha_west * 15.0
+    ranges = [(-east, west)]
+    if meridian_limit is not None and west > meridian_limit:
+        ranges = [(-east, meridian_limit), (0.0, west)]
+
+    def above(k, t, lo=-180.0, hi=180.0):
+        alt, _ = geo.observed_altaz(k, t)
+        ha = wrap_pm180(geo.ha(k, t))
+        return (alt >= limit) & (ha >= lo) & (ha <= hi)
+
+    pieces = [checks.allowed_by(partial(above, lo=lo, hi=hi), idx) for lo, hi in ranges]
+    ever_above = checks.allowed_by(above, idx) if dark else [[] for _ in idx]
+    for row, i in enumerate(idx):
+        blocks = sorted(part for allowed in pieces for part in allowed[row])
+        if len(dark) > 1:
+            blocks = [part for block in blocks for part in iv.intersect([block], dark)]
+        windows[i] = blocks if dark else []
+        reasons[i] = ""
+        if not dark:
+            reasons[i] = f"no {checks.c.darkness} darkness tonight"
+        elif not ever_above[row]:
+            alt_day, _ = geo.observed_altaz(np.full(geo.track.t.shape, i), geo.track.t)
+            reasons[i] = (f"never rises above {limit:g} deg" if alt_day.max() < limit
+                          else f"above {limit:g} deg only in daylight")
+        elif not blocks:
+            reasons[i] = "outside the mount's hour-angle limits"
+        if geo.track.names[geo.track.slot[i]] == "sun" and \
+                not geo.site.interlocks.solar_filter_fitted:
+            windows[i], reasons[i] = [], SUN_REFUSED
+
+
 def _interval_lists(c: _Candidates, keep: np.ndarray, dark: list) -> list:
     """Per target, its valid candidate intervals as a sorted list (only where `keep`),
     intersected with the dark intervals when there are several."""
@@ -230,6 +300,9 @@ def _transit_and_peak(geo: _Geometry, span: list):
     """Transit nearest mid-darkness (s) and the highest observed altitude in the span (deg)."""
     idx = np.arange(geo.ra.shape[0])
     transit = geo.t_mid - geo.ha_mid / SIDEREAL_DEG_PER_S
+    moving = np.flatnonzero(geo.moving)
+    for _ in range(3):  # a body's transit: where its own hour angle is zero
+        transit[moving] -= wrap_pm180(geo.ha(moving, transit[moving])) / SIDEREAL_DEG_PER_S
     peaks = []
     for start, end in span:
         inside = (transit >= start) & (transit <= end)
@@ -285,19 +358,30 @@ class _SampledChecks:
             needed["moon"] = moon_sep < self.c.moon_separation + 1.0
         else:
             needed["moon"] = np.zeros(n, dtype=bool)
+        if geo.track is not None:
+            # Bodies move: every check along their track, but the Moon is never too near
+            # itself, nor the Sun (planned only with a solar filter) too near the Sun.
+            switched_on = {"mask": self.mask is not None, "dec": True,
+                           "sun": self.sun_radius > 0.0, "moon": self.moon_on}
+            for which in needed:
+                needed[which] = needed[which] | (geo.moving & switched_on[which])
+            own = {name: geo.track.rows[k] for k, name in enumerate(geo.track.names)
+                   if name in ("sun", "moon")}
+            for name, row in own.items():
+                needed[name][row] = False
         return needed
 
     def _ok(self, which: str, idx, t):
         """Whether the check passes for targets idx at times t (broadcasting)."""
         geo = self.geo
         if which == "mask":
-            alt, az = altaz_from_ha(geo.ha(idx, t), geo.dec[idx], geo.lat)
+            alt, az = altaz_from_ha(*geo.hadec(idx, t), geo.lat)
             return alt >= np.interp(az, self.mask.azimuth, self.mask_true, period=360.0)
         if which == "dec":
             mount = self.site.interlocks.mount
             dec_observed = observed_declination(*geo.observed_altaz(idx, t), geo.lat)
             return (dec_observed >= mount.dec_min) & (dec_observed <= mount.dec_max)
-        target = _unit(geo.ra[idx], geo.dec[idx])
+        target = _unit(*geo.radec(idx, t))
         if which == "sun":
             return geo.sky.separation_from("sun", target, t) >= self.sun_radius
         required = self.c.moon_separation
@@ -314,13 +398,25 @@ class _SampledChecks:
                               ("sun", "too near the Sun"), ("moon", "too near the Moon")):
             idx = np.array([i for i in np.flatnonzero(self.needed[which]) if windows[i]],
                            dtype=int)
+            moving = self.geo.moving[idx]
             if which == "mask" and idx.size:
-                idx = idx[self._dips_below_mask(idx, windows)]
+                # Stars: closed-form mask crossings where they dip below it; bodies: sampled.
+                fixed = idx[~moving]
+                fixed = fixed[self._dips_below_mask(fixed, windows)] if fixed.size else fixed
+                idx = np.concatenate((fixed, idx[moving]))
+                moving = self.geo.moving[idx]
             if idx.size == 0:
                 continue
-            allowed = (mask_clear_intervals(self.geo, self.mask, idx, self.span,
-                                            self.c.sample_step)
-                       if which == "mask" else self._allowed(which, idx))
+            if which == "mask":
+                allowed = [None] * idx.size
+                for part, found in ((~moving, lambda k: mask_clear_intervals(
+                        self.geo, self.mask, k, self.span, self.c.sample_step)),
+                                    (moving, lambda k: self._allowed(which, k))):
+                    if part.any():
+                        for row, intervals in zip(np.flatnonzero(part), found(idx[part])):
+                            allowed[row] = intervals
+            else:
+                allowed = self._allowed(which, idx)
             for i, intervals in zip(idx, allowed):
                 windows[i] = [part for piece in windows[i] for part in iv.intersect([piece], intervals)]
                 if not windows[i]:
@@ -347,26 +443,33 @@ class _SampledChecks:
         np.minimum.at(per_target, owner, lowest)
         return per_target < float(self.mask_true.max())
 
-    def _allowed(self, which: str, idx: np.ndarray) -> list:
-        """For targets idx, the intervals of the span where the check passes."""
+    def allowed_by(self, test, idx: np.ndarray) -> list:
+        """For targets idx, the intervals of the span where test(idx, t) holds (sampled every
+        sample_step and refined by bisection)."""
+        return self._allowed(test, idx)
+
+    def _allowed(self, which, idx: np.ndarray) -> list:
+        """For targets idx, the intervals of the span where the check passes (`which`: a
+        check's name or a test(idx, t))."""
         steps = max(2, int(np.ceil((self.span[1] - self.span[0]) / self.c.sample_step)) + 1)
         t = np.linspace(self.span[0], self.span[1], steps)
-        ok = self._ok(which, idx[:, None], t[None, :])
+        test = which if callable(which) else partial(self._ok, which)
+        ok = test(idx[:, None], t[None, :])
         padded = np.zeros((idx.size, steps + 2), dtype=np.int8)
         padded[:, 1:-1] = ok
         change = np.diff(padded, axis=1)
         # Rising edges start a run at sample j, falling edges end one at sample j - 1.
         rows_up, cols_up = np.nonzero(change == 1)
         rows_down, cols_down = np.nonzero(change == -1)
-        starts = self._edges(which, idx[rows_up], t, cols_up, rising=True)
-        ends = self._edges(which, idx[rows_down], t, cols_down - 1, rising=False)
+        starts = self._edges(test, idx[rows_up], t, cols_up, rising=True)
+        ends = self._edges(test, idx[rows_down], t, cols_down - 1, rising=False)
         allowed = [[] for _ in range(idx.size)]
         for row, start, end in zip(rows_up, starts, ends):
             if end > start:
                 allowed[row].append((float(start), float(end)))
         return allowed
 
-    def _edges(self, which: str, idx, t, cols, rising: bool) -> np.ndarray:
+    def _edges(self, test, idx, t, cols, rising: bool) -> np.ndarray:
         """Refined times of run edges at sample columns `cols` (the first or last passing
         sample); the span's own ends stay where they are."""
         edge = t[cols].copy()
@@ -379,7 +482,7 @@ class _SampledChecks:
         # Bisection between a failing and a passing sample, all edges at once.
         for _ in range(_REFINE_STEPS):
             mid = 0.5 * (t_bad + t_good)
-            passed = self._ok(which, k, mid)
+            passed = test(k, mid)
             t_good = np.where(passed, mid, t_good)
             t_bad = np.where(passed, t_bad, mid)
         edge[inner] = t_good

@@ -20,6 +20,8 @@
 
     [safety]
     sun_avoidance = 30.0      # degrees: never point closer to the Sun (0 turns it off)
+    solar_filter_fitted = false   # true only with a full-aperture solar filter on: the Sun
+                                  # may then be a target (a caution is shown every time)
 
 Every key is optional; missing ones keep the defaults of core.limits, which keep the
 interlocks on. Errors name the file, the table and the key (or the line of a horizon file).
@@ -39,7 +41,7 @@ MOUNT_KEYS = {"type": "mount_type", "min_altitude": "min_altitude", "ha_east": "
               "ha_west": "ha_west", "dec_min": "dec_min", "dec_max": "dec_max",
               "meridian_limit": "meridian_limit", "slew_rate": "slew_rate", "settle": "settle",
               "park_ha": "park_ha", "park_dec": "park_dec"}
-SAFETY_KEYS = ("sun_avoidance",)
+SAFETY_KEYS = ("sun_avoidance", "solar_filter_fitted")
 HORIZON_KEYS = ("points", "file")
 
 
@@ -122,9 +124,10 @@ def read_interlocks(path, reserved: dict) -> Interlocks:
     try:
         mount = MountLimits(**mount_values)
         sun = _number(path, "safety", "sun_avoidance", safety_table.get("sun_avoidance", 30.0))
-        return Interlocks(mount=mount, horizon=horizon, sun_avoidance=sun)
+        return Interlocks(mount=mount, horizon=horizon, sun_avoidance=sun,
+                          solar_filter_fitted=safety_table.get("solar_filter_fitted", False))
     except LimitError as err:
-        table = "safety" if err.field == "sun_avoidance" else "mount"
+        table = "safety" if err.field in ("sun_avoidance", "solar_filter_fitted") else "mount"
         key = "type" if err.field == "mount_type" else err.field
         raise InputError(path, f"table [{table}], key {key}: "
                                f"{str(err).split(': ', 1)[-1]}") from None
@@ -137,6 +140,8 @@ def interlocks_to_tables(interlocks: Interlocks) -> dict:
     tables = {"mount": {key: getattr(mount, field) for key, field in MOUNT_KEYS.items()
                         if getattr(mount, field) is not None},
               "safety": {"sun_avoidance": float(interlocks.sun_avoidance)}}
+    if interlocks.solar_filter_fitted:
+        tables["safety"]["solar_filter_fitted"] = True
     if interlocks.horizon is not None:
         mask = interlocks.horizon
         tables["horizon"] = {"points": [[float(a), float(h)]

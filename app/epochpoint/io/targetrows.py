@@ -23,6 +23,7 @@ from .errors import InputError, SkippedRowWarning, quote
 from .frames import convert_to_icrs, parse_equinox, parse_frame
 from .eventfields import EVENT_PARSERS
 from .planningfields import PARSERS
+from .timeconstraintfields import check_time_cells
 from .targetchecks import DEFAULT_EPOCH_JYEAR, fill_epochs, warn_about_rows
 from .targetcolumns import ASTROMETRY_COLUMNS, UNCERTAINTY_COLUMNS
 
@@ -264,6 +265,7 @@ def build_targets(raw: RawTable, skip_bad_rows: bool = False, on_skip=None) -> T
     fill_epochs(raw, values, note)
     frames, equinoxes = _frames(raw, note)
     _check_planning_fields(raw, note)
+    check_time_cells(raw.extra, note)  # not_before/not_after and phase windows
 
     keep = np.ones(len(raw), dtype=bool)
     for i in sorted(problems):

@@ -30,6 +30,8 @@ def _poly(alpha, coefficients):
 def planet_magnitude(body: str, alpha_deg, r_au, delta_au, ring_sin_latitude=None):
     """V magnitude of a planet (Mallama & Hilton 2018; see module docstring)."""
     a = np.asarray(alpha_deg, dtype=float)
+    if body == "sun":  # the Sun's apparent V: -26.74 at 1 au (common practice)
+        return -26.74 + 5.0 * np.log10(np.asarray(delta_au)) + 0.0 * a
     distance_term = 5.0 * np.log10(np.asarray(r_au) * np.asarray(delta_au))
     if body == "mercury":
         v = _poly(a, (-0.613, 6.3280e-02, -1.6336e-03, 3.3644e-05, -3.4265e-07, 1.6893e-09,
@@ -59,8 +61,6 @@ def planet_magnitude(body: str, alpha_deg, r_au, delta_au, ring_sin_latitude=Non
         v = _poly(a, (-7.110, 6.587e-03, 1.045e-04))
     elif body == "neptune":
         v = _poly(a, (-7.00, 7.944e-03, 9.617e-05))
-    elif body == "sun":
-        return -26.74 + 5.0 * np.log10(np.asarray(delta_au)) + 0.0 * a
     else:
         return np.full(np.shape(a), np.nan)
     return v + distance_term

@@ -1,7 +1,7 @@
 """The mount-frame stage: from the observed place to the mount's axes, and from the axes to the
 coordinates of date a controller takes (and back, for what a mount reports).
 
-    observed place (ha, dec) or (az, alt)  --pointing model-->  mount axes  --LAST-->  RA, Dec of date
+    observed place (ha, dec) or (az, alt) --model--> mount axes --LAST--> RA, Dec of date
 
 A controller that takes coordinates of date (INDI EQUATORIAL_EOD_COORD) turns them into the
 hour angle of its axes with its own local apparent sidereal time, HA = LAST - RA (common

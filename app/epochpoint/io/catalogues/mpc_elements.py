@@ -56,7 +56,8 @@ ELEMENT_COLUMNS = ("semimajor_axis", "perihelion_distance", "eccentricity", "inc
                    "perihelion_time", "abs_magnitude", "slope", "comet_m1", "comet_k1")
 _PACKED_DIGITS = "123456789ABCDEFGHIJKLMNOPQRSTUV"  # 1 .. 31
 _CENTURIES = {"I": 1800, "J": 1900, "K": 2000}
-_ASTEROID_LINE = re.compile(r"^.{7} [ \d.+-]{5} [ \d.+-]{5} [IJK]\d\d[1-9A-C][1-9A-V] ")
+# Layout tests: blanks where the formats put them (fields are then read one by one).
+_ASTEROID_LINE = re.compile(r"^\S.{6} .{5} .{5} \S{5} .{9}  .{9}  .{9}  ")
 _COMET_LINE = re.compile(r"^.{14}\d{4} \d\d [ \d]\d\.")
 
 
