@@ -28,16 +28,9 @@ from epochpoint.core.time_constraints import TimeConstraints
 from epochpoint.core.timescale import TimeInputError, check_year, parse_time, quiet_erfa
 
 from .errors import InputError, quote
+from .eventfields import _blank, _within
 
 TIME_FIELDS = ("not_before", "not_after", "phase_min", "phase_max")
-
-
-def _blank(value) -> bool:
-    if value is None:
-        return True
-    if isinstance(value, float) and math.isnan(value):
-        return True
-    return isinstance(value, str) and value.strip() in ("", "--", "nan")
 
 
 def parse_instant(value) -> str | None:
@@ -71,13 +64,7 @@ def parse_phase(value) -> float:
     """A phase, a fraction of the period from 0 to 1; blank is NaN (no window)."""
     if _blank(value):
         return math.nan
-    try:
-        number = float(str(value).strip()) if isinstance(value, str) else float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{quote(value)} is not a number") from None
-    if not 0.0 <= number <= 1.0:
-        raise ValueError(f"{quote(value)} must be a phase from 0 to 1 (a fraction of the period)")
-    return number
+    return _within(value, 0.0, 1.0, "a phase from 0 to 1 (a fraction of the period)")
 
 
 TIME_PARSERS = {"not_before": parse_instant, "not_after": parse_instant,
