@@ -74,3 +74,4 @@ def test_quitting_with_unapplied_site_edits_asks(make_window, qtbot, monkeypatch
     assert window.isVisible() != closes
     if not closes:
         assert window.site_editor.fields["dec_min"].text() == "abc"  # kept to be fixed
+        window.interactive = False  # no question left open when the fixture closes it

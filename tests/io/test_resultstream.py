@@ -97,7 +97,7 @@ class _CountingOutput(io.StringIO):
         return super().write(text)
 
 
-@pytest.mark.parametrize("fmt", ["csv", "json", "ecsv"])
+@pytest.mark.parametrize("fmt", ["csv", "json", "ecsv", "votable"])
 def test_the_writer_holds_one_chunk_at_a_time(invented, fmt):
     targets, site = invented
     chunks = position_chunks(targets, site, WHEN, chunk_size=SMALL_CHUNK)

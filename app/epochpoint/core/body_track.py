@@ -74,11 +74,32 @@ def _stacked_observer(contexts):
                     sun_bary_au=join("sun_bary_au"))
 
 
+def apparent_of_date(sources, contexts) -> tuple[np.ndarray, np.ndarray, list]:
+    """Topocentric apparent right ascension and declination of date (deg, shape (k, n)) of k
+    sources at the n contexts' instants and sites (the chain of core/bodies/sources.py, as in
+    positions()), and each source's BodyPlace (GCRS axes). One light-time solution per
+    source for all instants at once."""
+    from .bodies.sources import apparent_place
+
+    observer = _stacked_observer(contexts)
+    npb = np.stack([ctx.npb_true_of_date for ctx in contexts])  # (n, 3, 3)
+    ra, dec, places = (np.empty((len(sources), len(contexts))),
+                       np.empty((len(sources), len(contexts))), [])
+    for k, source in enumerate(sources):
+        seen = apparent_place(source, observer)
+        # Rotated to the true equator of date at each instant.
+        p_tod = np.einsum("kij,jk->ik", npb, seen.p_gcrs)
+        ra_rad, dec_rad = to_spherical(p_tod)
+        ra[k], dec[k] = np.mod(ra_rad * RAD_TO_DEG, 360.0), dec_rad * RAD_TO_DEG
+        places.append(seen)
+    return ra, dec, places
+
+
 def build_body_track(targets, site, sky, step_s: float = TRACK_STEP_S) -> BodyTrack | None:
     """The track of every body row of `targets` over the sky track's span (None without
     bodies); sky is a SkyTrack (its clock and time_at)."""
     from .bodies.rows import sources_of
-    from .bodies.sources import MajorBody, apparent_place
+    from .bodies.sources import MajorBody
 
     rows, sources = sources_of(targets)
     if not len(rows):
@@ -87,18 +108,11 @@ def build_body_track(targets, site, sky, step_s: float = TRACK_STEP_S) -> BodyTr
     with warnings.catch_warnings():  # the night's one Earth-orientation warning is enough
         warnings.simplefilter("ignore", StaleEarthOrientation)
         contexts = [make_context(sky.time_at(float(ti)), site) for ti in t]
-    observer = _stacked_observer(contexts)
-    npb = np.stack([ctx.npb_true_of_date for ctx in contexts])  # (k, 3, 3)
     last_deg = np.array([ctx.site.last_rad for ctx in contexts]) * RAD_TO_DEG
-    ha, dec = np.empty((len(rows), t.size)), np.empty((len(rows), t.size))
-    for k, source in enumerate(sources):
-        # Topocentric apparent place, rotated to the true equator of date at each sample.
-        seen = apparent_place(source, observer)
-        p_tod = np.einsum("kij,jk->ik", npb, seen.p_gcrs)
-        ra_rad, dec_rad = to_spherical(p_tod)
-        hour_angle = np.mod(last_deg - ra_rad * RAD_TO_DEG + 180.0, 360.0) - 180.0
-        ha[k] = np.degrees(np.unwrap(np.radians(hour_angle)))
-        dec[k] = dec_rad * RAD_TO_DEG
+    # Topocentric apparent place of date at each sample, as an unwrapped hour angle.
+    ra, dec, _ = apparent_of_date(sources, contexts)
+    hour_angle = np.mod(last_deg - ra + 180.0, 360.0) - 180.0
+    ha = np.degrees(np.unwrap(np.radians(hour_angle), axis=1))
     slot = np.full(len(targets), -1, dtype=int)
     slot[rows] = np.arange(len(rows))
     names = tuple(s.name if isinstance(s, MajorBody) else "" for s in sources)

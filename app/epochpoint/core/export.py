@@ -20,6 +20,15 @@ from core.sunmoon.moon_track, compared with the target's apparent place of date.
 checked once, at the export instant, at each target's place (the destination, not the path a
 slew takes to it); the file says so (meta `interlocks_checked`).
 
+Solar-system bodies (core/bodies/): in the apparent frame a body row carries its topocentric
+apparent place of date at the site (what a controller at the site must be sent; the Moon's
+differs from the geocentric one by up to a degree, stars' by nothing measurable), the place
+`mount slew` sends; in the other frames the positions() columns (ICRS: the astrometric
+geocentric direction). One place is not enough for something that moves, so the export of a
+body carries a short ephemeris (core/export_ephemeris.py) and the validity window below is
+that of the fixed stars, bounded by the ephemeris's span. The Sun as a target is refused
+unless a solar filter is declared fitted (core.limits).
+
 Validity window (coordinate accuracy only; the interlocks are not re-checked over it): how
 long until the exported coordinates of the fastest-moving target change by more than the
 tolerance, from a finite difference of the same computation (positions at the instant and one
@@ -96,16 +105,48 @@ def sun_separation_deg(site: Site, when, ra_apparent_deg, dec_apparent_deg) -> n
     return separation(stars, sun) / DEG_TO_RAD
 
 
-def refusals(result, site: Site, sun_deg=None) -> np.ndarray:
+def refusals(result, site: Site, sun_deg=None, is_sun=False) -> np.ndarray:
     """Why the site's interlocks refuse each target of a positions() result ('' if allowed).
 
-    sun_deg: the targets' separations from the Sun when already computed.
+    sun_deg: the targets' separations from the Sun when already computed; is_sun: which
+    targets are the Sun itself (sun_rows).
     """
     if sun_deg is None:
         sun_deg = sun_separation_deg(site, result.context.time, result["ra_apparent"],
                                      result["dec_apparent"])
     return site.interlocks.violations(result["alt"], result["az"], result["ha"],
-                                      result["dec_observed"], sun_deg)
+                                      result["dec_observed"], sun_deg, is_sun=is_sun)
+
+
+def sun_rows(targets: Targets) -> np.ndarray:
+    """Which rows of `targets` are the Sun (a `body` cell naming it)."""
+    out = np.zeros(len(targets), dtype=bool)
+    body = {k.strip().lower(): v for k, v in targets.extra.items()}.get("body")
+    if body is not None:
+        out[:] = [str(b).strip().lower() == "sun" for b in np.asarray(body, dtype=object)]
+    return out
+
+
+def placed(targets: Targets, site: Site, when):
+    """positions() of the targets at `when`, with the body rows' ra_apparent, dec_apparent
+    replaced by their topocentric apparent place of date at the site (see the module
+    docstring); the table keeps the result's `context`. Bodies cost one light-time solution
+    each on the same context."""
+    result = positions(targets, site, when)
+    from .bodies.rows import sources_of
+
+    rows, sources = sources_of(targets)
+    if not len(rows):
+        return result
+    from .body_track import apparent_of_date
+
+    ra, dec = np.array(result["ra_apparent"], float), np.array(result["dec_apparent"], float)
+    ra_topo, dec_topo, _ = apparent_of_date(sources, [result.context])
+    ra[rows], dec[rows] = ra_topo[:, 0], dec_topo[:, 0]
+    table = ColumnTable({**{k: result[k] for k in result}, "ra_apparent": ra,
+                         "dec_apparent": dec}, result.meta, result.units)
+    table.context = result.context
+    return table
 
 
 def mount_columns(result, site: Site, model) -> tuple[ColumnTable, np.ndarray]:
@@ -215,8 +256,8 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
     if frame == "mount" and model is None:
         raise ValueError("the mount frame needs a pointing model (--model MODEL.json, from "
                          "epochpoint pointing fit)")
-    result = positions(targets, site, when)
-    reasons = refusals(result, site)
+    result = placed(targets, site, when)
+    reasons = refusals(result, site, is_sun=sun_rows(targets))
     table = result
     if frame == "mount":
         table, axes_reasons = mount_columns(result, site, model)
@@ -226,7 +267,21 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
     exported = targets[rows]
     shown = table.select(rows)
     instant = result.context.time
-    seconds, fastest, rate = validity(exported, site, instant, shown, frame, tolerance, model)
+    # Fixed stars set the validity window; bodies are carried by their ephemeris.
+    from .bodies.rows import sources_of
+    from .export_ephemeris import body_ephemeris
+
+    body_idx, _ = sources_of(exported)
+    stars = np.setdiff1d(np.arange(len(rows)), body_idx)
+    seconds, fastest, rate = validity(exported[stars], site, instant, shown.select(stars),
+                                      frame, tolerance, model)
+    # The ephemeris is given for the bodies the interlocks allow (a refused one is listed
+    # with --all, without an ephemeris to point by).
+    allowed_bodies = body_idx[reasons[rows][body_idx] == ""]
+    ephemeris = None
+    if len(allowed_bodies):
+        ephemeris = body_ephemeris(exported[allowed_bodies], site, instant, frame, tolerance,
+                                   model=model)
 
     columns = {"name": shown["name"]}
     columns.update({c: shown[c] for c in FRAME_COLUMNS[frame]})
@@ -248,7 +303,17 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
                 targets_distance_unknown=int(np.count_nonzero(exported.distance_unknown)),
                 tolerance_arcsec=tolerance)
     meta.update(_validity_meta(frame, instant, seconds, fastest, rate, tolerance,
-                               exported=len(rows) > 0))
+                               exported=len(stars) > 0))
+    if ephemeris is not None:
+        meta.update(ephemeris.meta)
+        span = ephemeris.meta["ephemeris_span_s"]
+        if meta["valid_for_s"] is None or meta["valid_for_s"] > span:
+            meta["valid_for_s"] = span
+            meta["valid_until"] = iso_z(instant + TimeDelta(span, format="sec"))
+            meta["validity_basis"] = (f"the span of the bodies' ephemeris ({span:g} s); "
+                                      f"fixed stars: {meta['validity_basis']}")
+        else:
+            meta["validity_basis"] += "; bodies: their ephemeris covers the window"
     if frame == "mount":
         meta.update(model_file=model_source, model_mount_type=model.mount_type,
                     model_terms=", ".join(f"{n} {v:.2f} arcsec" for n, v in model.values.items()),
@@ -258,7 +323,9 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
     if "earth_orientation_warning" in result.meta:
         meta["earth_orientation_warning"] = result.meta["earth_orientation_warning"]
     units = {c: COLUMN_UNITS.get(c, "deg") for c in FRAME_COLUMNS[frame]}
-    return ColumnTable(columns, meta, units)
+    out = ColumnTable(columns, meta, units)
+    out.ephemeris = ephemeris  # a ColumnTable of the bodies' ephemeris rows, or None
+    return out
 
 
 def _finite_or_none(value: float):
@@ -297,15 +364,45 @@ def export_text(table: ColumnTable, format: str) -> str:
     from ..io.results import result_csv, result_json
 
     columns = dict(table)
+    ephemeris = getattr(table, "ephemeris", None)
     if format == "csv":
+        if ephemeris is not None:
+            columns = _with_ephemeris_rows(table, ephemeris)
         return result_csv(columns, {k: "" if v is None else v for k, v in table.meta.items()})
     if format == "json":
         document = {"meta": table.meta, "units": table.units,
                     "targets": json.loads(result_json(columns))}
+        if ephemeris is not None:
+            document["ephemeris_units"] = ephemeris.units
+            document["ephemeris"] = json.loads(result_json(dict(ephemeris)))
         return json.dumps(document, indent=1, allow_nan=False) + "\n"
     if format == "votable":
         return _votable_text(table)
     raise ValueError(f"unknown export format {format!r} (use {', '.join(EXPORT_FORMATS)})")
+
+
+def _with_ephemeris_rows(table: ColumnTable, ephemeris: ColumnTable) -> dict:
+    """CSV columns: the targets' rows (`row` = place, at the export instant), then the
+    bodies' ephemeris rows (`row` = ephemeris), one table; cells a row kind lacks are empty."""
+    n, m = table.nrows, ephemeris.nrows
+    names = list(dict.fromkeys(["row", "name", "time", *table, *ephemeris]))
+    out = {}
+    for c in names:
+        if c == "row":
+            out[c] = np.array(["place"] * n + ["ephemeris"] * m, dtype=object)
+        elif c == "time":
+            out[c] = np.array([table.meta["time"]] * n + list(ephemeris["time"]), dtype=object)
+        else:
+            a = table[c] if c in table else None
+            b = ephemeris[c] if c in ephemeris else None
+            numeric = all(x is None or np.asarray(x).dtype.kind == "f" for x in (a, b))
+            fill = (np.full(n, np.nan) if numeric else np.full(n, "", dtype=object)) \
+                if a is None else np.asarray(a)
+            more = (np.full(m, np.nan) if numeric else np.full(m, "", dtype=object)) \
+                if b is None else np.asarray(b)
+            out[c] = np.concatenate([fill.astype(object) if not numeric else fill,
+                                     more.astype(object) if not numeric else more])
+    return out
 
 
 _PARAM_UNITS = {"tolerance_arcsec": "arcsec", "valid_for_s": "s", "latitude": "deg",
@@ -321,6 +418,13 @@ def _votable_text(table: ColumnTable) -> str:
 
     votable = from_table(result_table(dict(table), {}, table.units))
     resource, vo_table = votable.resources[0], votable.resources[0].tables[0]
+    ephemeris = getattr(table, "ephemeris", None)
+    if ephemeris is not None:
+        # The bodies' ephemeris as a second table of the resource, named "ephemeris".
+        extra = from_table(result_table(dict(ephemeris), {}, ephemeris.units))
+        second = extra.resources[0].tables[0]
+        second.name = second.ID = "ephemeris"
+        resource.tables.append(second)
     for key, value in table.meta.items():
         resource.infos.append(Info(name=key, value="" if value is None else str(value)))
         if isinstance(value, (int, float)) and not isinstance(value, bool) and \

@@ -167,18 +167,23 @@ class Interlocks:
             return floor
         return np.maximum(floor, self.horizon.min_altitude(az_deg))
 
-    def violations(self, alt_deg, az_deg, ha_deg, dec_deg, sun_separation_deg) -> np.ndarray:
+    def violations(self, alt_deg, az_deg, ha_deg, dec_deg, sun_separation_deg,
+                   is_sun=False) -> np.ndarray:
         """Why each pointing is refused ('' when allowed), as an array of short reasons.
 
-        Checked in order of danger: Sun avoidance first, then altitude and horizon, then the
+        Checked in order of danger: the Sun as a target (is_sun, per pointing or for all)
+        first, refused unless solar_filter_fitted (then exempt from Sun avoidance, its
+        separation from itself being 0); then Sun avoidance, altitude and horizon, the
         mount's hour-angle and declination ranges.
         """
         alt_deg, az_deg = np.asarray(alt_deg, dtype=float), np.asarray(az_deg, dtype=float)
         ha_h = np.asarray(ha_deg, dtype=float) / 15.0
         dec_deg = np.asarray(dec_deg, dtype=float)
         reasons = np.full(alt_deg.shape, "", dtype=object)
+        sun_target = np.broadcast_to(np.asarray(is_sun, dtype=bool), alt_deg.shape)
         rules = (
-            (np.asarray(sun_separation_deg) < self.sun_avoidance,
+            (sun_target & (not self.solar_filter_fitted), SUN_REFUSED),
+            (~sun_target & (np.asarray(sun_separation_deg) < self.sun_avoidance),
              f"within {self.sun_avoidance:g} deg of the Sun"),
             (alt_deg < self.mount.min_altitude,
              f"below the minimum altitude {self.mount.min_altitude:g} deg"),

@@ -97,14 +97,27 @@ def run_gui(path=None, screenshot=None, site_spec: str | None = None,
         return _screenshot(app, path, screenshot, site_spec, night, load_path, MainWindow)
     window = MainWindow(QSettings(), interactive=True)
     window.show()
-    if path:
-        window.open_path(os.fspath(path), site_spec, night)
-    elif site_spec or night:
-        _start_with(window, site_spec, night)
-    else:
-        window.offer_untitled_recovery()
+    start_session(window, path, site_spec, night)
     window.recompute_timer.start()
     return app.exec()
+
+
+def start_session(window, path=None, site_spec: str | None = None,
+                  night: str | None = None) -> None:
+    """Open what the command line names, then offer every recovery file an earlier session
+    left (gui.recovery_offer); the opened file's own was offered when it opened."""
+    from .loading import is_plan_file
+    from .recovery import recovery_path
+    from .recovery_offer import offer_recoveries
+
+    offered = None
+    if path:
+        path = os.fspath(path)
+        window.open_path(path, site_spec, night)
+        offered = recovery_path(window.autosaver.folder, path if is_plan_file(path) else None)
+    elif site_spec or night:
+        _start_with(window, site_spec, night)
+    offer_recoveries(window, skip=offered)
 
 
 def _start_with(window, site_spec, night) -> None:

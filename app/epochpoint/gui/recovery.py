@@ -10,6 +10,10 @@ recovery file that cannot be read is renamed for salvage (`salvage_recovery`), n
 An autosave that fails emits `failed` (the window tells the user); the next one that works
 emits `saved`.
 
+Beside each recovery file a one-line `.source` file names the document it keeps (empty for an
+untitled one), so that at start-up every recovery file can be offered with its document's name
+and the time it was written (`recovery_files`).
+
 Recent files live in QSettings under "files/recent" (the caller's QSettings, so tests can use
 a temporary one), newest first, at most RECENT_MAX.
 """
@@ -19,9 +23,11 @@ import contextlib
 import datetime as dt
 import hashlib
 import os
+from dataclasses import dataclass
 
 from PySide6.QtCore import QObject, QStandardPaths, QTimer, Signal
 
+from epochpoint.io.atomic import atomic_write_text
 from epochpoint.io.errors import InputError
 from epochpoint.io.planfile import write_plan_file
 
@@ -47,6 +53,50 @@ def recovery_path(folder: str, document_path: str | None) -> str:
     return os.path.join(folder, name)
 
 
+RECOVERY_SUFFIX = ".recovery.json"
+SOURCE_SUFFIX = ".source"
+
+
+@dataclass(frozen=True)
+class RecoveryFile:
+    """A recovery file found in the folder: where it is, the document it keeps (None:
+    untitled or not known) and when it was written (ISO 8601 UTC)."""
+
+    path: str
+    document_path: str | None
+    written: str
+
+    @property
+    def document_name(self) -> str:
+        if self.document_path:
+            return os.path.basename(self.document_path)
+        stem = os.path.basename(self.path)[:-len(RECOVERY_SUFFIX)]
+        return "untitled plan" if stem == "untitled" else stem.rsplit("-", 1)[0]
+
+
+def recovery_files(folder: str) -> list[RecoveryFile]:
+    """Every recovery file in `folder`, the most recently written first."""
+    try:
+        names = [n for n in os.listdir(folder) if n.endswith(RECOVERY_SUFFIX)]
+    except OSError:
+        return []
+    found = []
+    for name in names:
+        path = os.path.join(folder, name)
+        try:
+            stamp = os.path.getmtime(path)
+        except OSError:
+            continue
+        source = None
+        with contextlib.suppress(OSError, UnicodeDecodeError):
+            with open(path + SOURCE_SUFFIX, encoding="utf-8") as text:
+                source = text.read().strip() or None
+        written = dt.datetime.fromtimestamp(stamp, dt.timezone.utc)
+        found.append((stamp, RecoveryFile(path, source,
+                                          written.strftime("%Y-%m-%dT%H:%M:%SZ"))))
+    return [f for _, f in sorted(found, key=lambda pair: -pair[0])]
+
+
 def newer_recovery(folder: str, document_path: str | None) -> str | None:
     """The recovery file for a document if it exists and is newer than the document's file."""
     candidate = recovery_path(folder, document_path)
@@ -68,7 +118,16 @@ def salvage_recovery(path: str) -> str:
         os.replace(path, target)
     except OSError:
         return path
+    with contextlib.suppress(OSError):
+        os.replace(path + SOURCE_SUFFIX, target + SOURCE_SUFFIX)
     return target
+
+
+def remove_recovery(path: str) -> None:
+    """Remove a recovery file and the note of its document."""
+    for name in (path, path + SOURCE_SUFFIX):
+        with contextlib.suppress(OSError):
+            os.remove(name)
 
 
 class Autosaver(QObject):
@@ -102,6 +161,8 @@ class Autosaver(QObject):
         try:
             os.makedirs(self.folder, exist_ok=True)
             write_plan_file(path, self.document.to_plan_document())
+            atomic_write_text(path + SOURCE_SUFFIX, os.path.abspath(self.document.path)
+                              if self.document.path else "")
         except (OSError, InputError, ValueError) as err:
             self.last_error = f"autosave failed: {err}"
             self.failed.emit(err)
@@ -114,16 +175,14 @@ class Autosaver(QObject):
     def clear(self) -> None:
         """Remove the recovery file written for this document (after a clean save or exit)."""
         for path in {self._written, self.current_path()} - {None}:
-            with contextlib.suppress(OSError):
-                os.remove(path)
+            remove_recovery(path)
         self._written = None
 
     def _on_path_changed(self, _path: str) -> None:
         # Saved under another name, or another document opened: the file written for the
         # previous path is no longer needed. A recovery file of the new path is left alone.
         if self._written and self._written != self.current_path():
-            with contextlib.suppress(OSError):
-                os.remove(self._written)
+            remove_recovery(self._written)
             self._written = None
 
     def _on_dirty_changed(self, dirty: bool) -> None:

@@ -62,6 +62,11 @@ def table_bytes(table: Table, fmt: str) -> bytes:
             table.write(text, format="ascii.ecsv")
             return text.getvalue().encode("utf-8")
         votable = from_table(table)
+        # Text columns are declared variable-length (arraysize "*", VOTable 1.4 sec. 2.2), so
+        # a table written chunk by chunk needs no widest value up front.
+        for field in votable.get_first_table().fields:
+            if field.datatype in ("char", "unicodeChar"):
+                field.arraysize = "*"
         for key, value in table.meta.items():
             votable.resources[0].infos.append(
                 Info(name=str(key), value="" if value is None else str(value)))

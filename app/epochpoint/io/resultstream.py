@@ -12,8 +12,9 @@ each chunk of rows (an ordered mapping name -> array, the same names every time)
   booleans or plain text take the per-cell path.
 - ecsv: the YAML header once (astropy's), then each chunk's data lines, formatted as for csv
   and spelled as astropy spells them (astropy writes a chunk whose text cells need quoting).
-- votable: its header declares each text column's widest value, known only at the end, so
-  the chunks are gathered and written whole by astropy (not streamed).
+- votable: TABLEDATA; each chunk is written by astropy and its rows are copied between the
+  header of the first chunk and the closing tags (text columns are variable-length, so the
+  header needs nothing from later chunks).
 
 `stream_result` writes a sequence of chunks to a file (atomically: temporary file, then
 rename) or to an open text stream.
@@ -270,24 +271,36 @@ class EcsvResultWriter:
 
 
 class VotableResultWriter:
-    """Gathers the chunks and writes one VOTable at the end (see module docstring)."""
+    """TABLEDATA rows of each chunk as astropy writes them, between one header and one tail."""
+
+    ROWS_START, ROWS_END = "<TABLEDATA>\n", "    </TABLEDATA>\n"
 
     def __init__(self, out, names, meta=None, units=None):
         self.out, self.names, self.meta, self.units = out, list(names), meta, units
-        self.chunks = {name: [] for name in self.names}
+        self.tail = None
 
-    def write_chunk(self, columns) -> None:
-        for name in self.names:
-            self.chunks[name].append(np.asarray(columns[name]))
-
-    def close(self) -> None:
+    def _document(self, columns) -> tuple[str, str, str]:
+        """(header, rows, tail) of one chunk written as a whole VOTable by astropy."""
         from .astropytables import table_bytes
         from .results import result_table
 
-        columns = {name: np.concatenate(parts) if parts else np.empty(0)
-                   for name, parts in self.chunks.items()}
-        self.out.write(table_bytes(result_table(columns, self.meta, self.units),
-                                   "votable").decode("utf-8"))
+        text = table_bytes(result_table({n: columns[n] for n in self.names}, self.meta,
+                                        self.units), "votable").decode("utf-8")
+        start = text.index(self.ROWS_START) + len(self.ROWS_START)
+        end = text.index(self.ROWS_END, start)
+        return text[:start], text[start:end], text[end:]
+
+    def write_chunk(self, columns) -> None:
+        header, rows, tail = self._document(columns)
+        if self.tail is None:
+            self.out.write(header)
+            self.tail = tail
+        self.out.write(rows)
+
+    def close(self) -> None:
+        if self.tail is None:
+            self.write_chunk({name: np.empty(0) for name in self.names})
+        self.out.write(self.tail)
 
 
 WRITERS = {"csv": CsvResultWriter, "json": JsonResultWriter, "ecsv": EcsvResultWriter,
@@ -316,7 +329,7 @@ def stream_result(chunks, names, meta=None, path=None, format="csv", units=None,
     """Write a result given as chunks to `path` atomically, or to the text stream `out`.
 
     chunks: iterable of mappings name -> array (rows in order); names: the columns, in order.
-    The chunks are read one at a time, so memory holds one chunk (votable: all of them)."""
+    The chunks are read one at a time, so memory holds one chunk."""
     if path is None:
         write_chunks(out, chunks, names, meta, format, units)
         return

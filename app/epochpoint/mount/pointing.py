@@ -8,6 +8,12 @@ frame bias (ERFA bp06) onto the mean equator and equinox of J2000.0; aberration,
 precession and nutation are then the controller's to apply. The interlocks are the site's
 (core.limits), with the Sun seen from the site (core.export.refusals).
 
+A solar-system body (core/bodies/) is sent its topocentric apparent place of date at the site
+(core.export.placed: the Moon's differs from its geocentric place by up to a degree, which a
+controller, knowing no distances, cannot correct), or on J2000 its topocentric astrometric
+direction rotated by the frame bias; its apparent rates (arcsec/s, seen from the site) come
+with it for the tracking rate. The Sun is refused unless a solar filter is declared fitted.
+
 With a pointing model the mount-frame stage (core.pointing_model.mount_frame) turns the
 observed place into where the mount's axes must go and those axes into the coordinates of date
 to send; the J2000 coordinates for them are the target's J2000 place moved by the same small
@@ -27,9 +33,8 @@ import numpy as np
 
 from ..core.apparent import apply_parallax, rotate
 from ..core.constants import DEG_TO_RAD, RAD_TO_DEG
-from ..core.export import refusals, sun_separation_deg
+from ..core.export import placed, refusals, sun_rows, sun_separation_deg
 from ..core.pointing_model.mount_frame import mount_axes, place_of_date
-from ..core.positions import positions
 from ..core.site import Site
 from ..core.targets import Targets
 from ..core.vectors import to_spherical, unit_vectors
@@ -55,6 +60,16 @@ class Pointing:
     axes_deg: tuple | None = None
     command_eod_deg: tuple | None = None  # (RA, Dec) of date
     command_j2000_deg: tuple | None = None  # (RA, Dec), mean equator and equinox of J2000.0
+    # A solar-system body: its source (core.bodies.sources) and apparent rates seen from the
+    # site (arcsec/s, true equator of date; rate_ra including cos Dec).
+    source: object = None
+    rate_ra_arcsec_s: float = float("nan")
+    rate_dec_arcsec_s: float = float("nan")
+    is_sun: bool = False
+
+    @property
+    def is_body(self) -> bool:
+        return self.source is not None
 
     @property
     def allowed(self) -> bool:
@@ -110,11 +125,19 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
     """The place to send for target `name` at `when`, with the interlocks' verdict; with a
     pointing model (core.pointing_model.PointingModel) the place its axes need."""
     one = find_target(targets, name)
-    result = positions(one, site, when)
-    ra_j2000, dec_j2000 = _astrometric_j2000(result, one)
+    result = placed(one, site, when)
+    source = _body_source(one)
+    if source is None:
+        ra_j2000, dec_j2000 = _astrometric_j2000(result, one)
+        body_fields = {}
+    else:
+        ra_j2000, dec_j2000 = _body_j2000(source, result.context)
+        body_fields = dict(source=source, rate_ra_arcsec_s=float(result["rate_ra"][0]),
+                           rate_dec_arcsec_s=float(result["rate_dec"][0]),
+                           is_sun=bool(sun_rows(one)[0]))
     sun_deg = sun_separation_deg(site, result.context.time, result["ra_apparent"],
                                  result["dec_apparent"])
-    refusal = str(refusals(result, site, sun_deg)[0])
+    refusal = str(refusals(result, site, sun_deg, is_sun=sun_rows(one))[0])
     model_fields = {}
     if model is not None:
         ctx = result.context
@@ -129,7 +152,7 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
         # The interlocks judge the commanded axes too, and say which place they refuse.
         sun_axes = sun_separation_deg(site, ctx.time, ra_cmd, dec_cmd)
         axes_refusal = str(site.interlocks.violations(axes.alt, axes.az, axes.ha, axes.dec,
-                                                      sun_axes)[0])
+                                                      sun_axes, is_sun=sun_rows(one))[0])
         refusal = "; ".join([f"sky place {refusal}"] * bool(refusal)
                             + [f"commanded axes {axes_refusal}"] * bool(axes_refusal))
         model_fields = dict(axes_deg=(float(axes.ha[0]), float(axes.dec[0])),
@@ -141,4 +164,23 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
         ra_j2000_deg=ra_j2000, dec_j2000_deg=dec_j2000,
         alt_deg=float(result["alt"][0]), az_deg=float(result["az"][0]),
         ha_deg=float(result["ha"][0]), dec_observed_deg=float(result["dec_observed"][0]),
-        sun_separation_deg=float(sun_deg[0]), refusal=refusal, **model_fields)
+        sun_separation_deg=float(sun_deg[0]), refusal=refusal, **model_fields, **body_fields)
+
+
+def _body_source(one: Targets):
+    """The source of a one-row Targets that is a solar-system body, else None."""
+    from ..core.bodies.rows import sources_of
+
+    _, sources = sources_of(one)
+    return sources[0] if sources else None
+
+
+def _body_j2000(source, ctx) -> tuple[float, float]:
+    """A body's topocentric astrometric direction (light time, no aberration or deflection)
+    on the mean equator and equinox of J2000.0 (ERFA bp06 frame bias), degrees."""
+    from ..core.body_track import apparent_of_date
+
+    _, _, places = apparent_of_date([source], [ctx])
+    frame_bias, _, _ = erfa.bp06(*ctx.tt)
+    ra, dec = to_spherical(np.asarray(frame_bias) @ places[0].u_astrometric)
+    return float(ra[0] * RAD_TO_DEG) % 360.0, float(dec[0] * RAD_TO_DEG)

@@ -20,6 +20,23 @@ Every answer the device gives to a switch or a number (Ok, Busy, Alert) is check
 is relied on: a refused ON_COORD_SET never lets the coordinates through as a sync.
 Nothing here retries after a lost connection.
 
+Solar-system bodies move against the stars, so a slew to one goes to its place at the slew's
+estimated END (the site's slew-time model, core.track.slew_end_seconds, from where the mount
+reports it points; the place at that instant, then the duration to that place and the place
+again: one iteration), the interlocks follow the body's moving place (core.track.BodyMotion),
+and once the coordinates are sent the mount is given the body's own tracking rate where the
+device offers one: INDI's TELESCOPE_TRACK_RATE (TRACK_RATE_RA, TRACK_RATE_DE, arcsec per SI
+second, the axes' rates: sidereal is 15.041067 in RA and 0 in Dec) and TELESCOPE_TRACK_MODE
+TRACK_CUSTOM. From the body's apparent rates (rate_ra including cos Dec, rate_dec; arcsec/s):
+TRACK_RATE_RA = 15.041067 - rate_ra / cos Dec (the hour-angle axis turns with the sky less
+the body's own eastward motion in right ascension) and TRACK_RATE_DE = rate_dec, as the INDI
+telescope simulator moves (measured: 30 and 10 gave -15 arcsec/s of RA and +10 of Dec).
+Without those properties (or when the device refuses them) the mount tracks sidereally and
+the body drifts off at its apparent rate: the watch re-slews it every 2 * tolerance / rate
+seconds (aimed half an interval ahead, so the error stays within +-tolerance), bounded to
+[RESLEW_MIN_S, RESLEW_MAX_S], and says so. The Sun is refused unless a solar filter is
+declared fitted, and then SOLAR_CAUTION is said on every slew and sync.
+
 Clocks: a controller converts coordinates of date with its own clock; 1 s of clock error is
 15 arcsec of hour angle at the equator (the sky turns 360 deg in a sidereal day, common
 practice). Before a slew or sync the device's TIME_UTC (dated by its arrival) is compared with
@@ -39,11 +56,15 @@ from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
 
 import numpy as np
 
+from astropy.time import TimeDelta
+
 from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
 from ..core.context import make_context
+from ..core.limits import SOLAR_CAUTION
 from ..core.site import Site
 from ..core.targets import Targets
-from ..core.track import slew_end_seconds, track_refusal
+from ..core.timescale import parse_time
+from ..core.track import body_motion, slew_end_seconds, track_refusal
 from ..core.vectors import separation, unit_vectors
 from .errors import ConnectionLost, IndiTimeout, InterlockRefused, MountError, MountFailed
 from .indi_client import IndiClient, Vector, parse_address
@@ -77,6 +98,15 @@ DEFAULT_TRACK_S = 600.0
 WATCH_POLL_S = 2.0
 WATCH_LEAD_S = 30.0
 AT_LIMIT = ("stop-tracking", "abort")
+# INDI's sidereal axis rate, arcsec per SI second: 360 deg per sidereal day of 86164.0905 s
+# (the INDI Library's TRACKRATE_SIDEREAL).
+INDI_SIDEREAL_ARCSEC_S = 1296000.0 / 86164.0905
+TRACK_RATE = "TELESCOPE_TRACK_RATE"
+TRACK_MODE = "TELESCOPE_TRACK_MODE"
+# Re-slew cadence bounds for a body on a mount without a track rate: a re-slew takes about
+# a settle time, so not more often than every 10 s; and at least every 10 minutes.
+RESLEW_MIN_S = 10.0
+RESLEW_MAX_S = 600.0
 
 Notify = Callable[[str], None]
 
@@ -125,6 +155,10 @@ class SlewReport:
     refined: bool
     tolerance_arcsec: float
     aborted: bool = False  # an abort() ended the motion while it was followed
+    # A body: how the mount follows it ("track rate", "re-slew", or "" for a star) and the
+    # re-slew cadence (s). pointing.time is then the slew's estimated end.
+    follow: str = ""
+    reslew_s: float | None = None
 
     @property
     def within_tolerance(self) -> bool | None:
@@ -489,6 +523,31 @@ class Telescope:
                                           {"RA": ra_deg / 15.0, "DEC": dec_deg})
         return _Command(coords, ra_deg, dec_deg, serial, sync)
 
+    def offers_track_rate(self) -> bool:
+        """Whether the device has INDI's custom tracking rate (TELESCOPE_TRACK_RATE with
+        TRACK_RATE_RA and TRACK_RATE_DE, and TELESCOPE_TRACK_MODE with TRACK_CUSTOM)."""
+        rate, mode = self._vector(TRACK_RATE), self._vector(TRACK_MODE)
+        return (rate is not None and {"TRACK_RATE_RA", "TRACK_RATE_DE"} <= set(rate.values)
+                and mode is not None and "TRACK_CUSTOM" in mode.values)
+
+    def set_track_rate(self, ra_axis_arcsec_s: float, de_axis_arcsec_s: float,
+                       token: int | None = None, timeout_s: float = TAKE_UP_S) -> bool:
+        """Set TELESCOPE_TRACK_RATE (axis rates, arcsec/s) and TELESCOPE_TRACK_MODE
+        TRACK_CUSTOM, each answer checked (MountFailed on Alert or no answer). False, and
+        nothing sent, when an abort was recorded since token."""
+        with self._motion_lock:
+            if token is not None and self.aborted_since(token):
+                return False
+        try:
+            self._set_and_wait(TRACK_RATE, {"TRACK_RATE_RA": ra_axis_arcsec_s,
+                                            "TRACK_RATE_DE": de_axis_arcsec_s}, timeout_s)
+        except IndiTimeout:
+            raise MountFailed(f"device {self.device} did not answer {TRACK_RATE} within "
+                              f"{timeout_s:g} s") from None
+        if not self._vector(TRACK_MODE).values.get("TRACK_CUSTOM"):
+            self._switch_to(TRACK_MODE, "TRACK_CUSTOM", timeout_s)
+        return True
+
     def stop_tracking(self) -> None:
         """TELESCOPE_TRACK_STATE to TRACK_OFF, checked; without it (or refused), an abort."""
         if self._vector("TELESCOPE_TRACK_STATE") is not None:
@@ -580,12 +639,15 @@ def _place_text(prop: str, ra_deg: float, dec_deg: float) -> str:
 
 
 def checked_pointing(targets: Targets, site: Site, name: str, when="now",
-                     model=None) -> Pointing:
+                     model=None, notify: Notify = _silent) -> Pointing:
     """The target's place now (with a pointing model, also its commanded axes), or
-    InterlockRefused with the reason (nothing is sent)."""
+    InterlockRefused with the reason (nothing is sent). The Sun, allowed only with the
+    solar option on, comes with SOLAR_CAUTION every time."""
     pointing = pointing_for(targets, site, name, when, model=model)
     if not pointing.allowed:
         raise InterlockRefused(name, pointing.refusal)
+    if pointing.is_sun:
+        notify(SOLAR_CAUTION)
     return pointing
 
 
@@ -614,13 +676,18 @@ def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
     track_s seconds after it (core.track.track_refusal: the same observed place and limits
     as the instant check, sampled every second). With a pointing model, the track of the
     commanded axes' place of date is judged as well."""
-    pointing = checked_pointing(targets, site, name, model=model)
+    pointing = checked_pointing(targets, site, name, model=model, notify=notify)
     slew_s = slew_seconds_from_mount(scope, pointing, site)
     ctx = make_context(pointing.time, site)
+    motion = None
+    if pointing.is_body:
+        # The body moves: its place along the track, and the place to send at the slew's end.
+        motion = body_motion(pointing.source, site, ctx.time, slew_s + track_s)
     at_s, why = track_refusal(pointing.ra_apparent_deg, pointing.dec_apparent_deg, site, ctx,
-                              0.0, slew_s + track_s)
+                              0.0, slew_s + track_s, motion=motion)
     if at_s is None and pointing.command_eod_deg is not None:
-        at_s, why = track_refusal(*pointing.command_eod_deg, site, ctx, 0.0, slew_s + track_s)
+        at_s, why = track_refusal(*pointing.command_eod_deg, site, ctx, 0.0, slew_s + track_s,
+                                  motion=motion)
         why = None if why is None else f"commanded axes {why}"
     elif pointing.command_eod_deg is not None:
         why = f"sky place {why}"
@@ -631,8 +698,30 @@ def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
         raise InterlockRefused(name, f"{why} {(at_s - slew_s) / 60.0:.1f} min into the "
                                      f"{track_s / 60.0:g} min track after the slew")
     notify(f"Interlocks: {name} allowed now, at the end of the slew (about {slew_s:.0f} s) "
-           f"and for {track_s / 60.0:g} min of tracking after it.")
+           f"and for {track_s / 60.0:g} min of tracking after it"
+           + (", along its own motion." if motion is not None else "."))
+    if pointing.is_body:
+        pointing = place_at_slew_end(scope, targets, site, name, ctx.time, model, notify)
     return pointing
+
+
+def place_at_slew_end(scope: Telescope, targets: Targets, site: Site, name: str, start,
+                      model=None, notify: Notify = _silent) -> Pointing:
+    """A body's place at the estimated end of a slew begun at `start`: the slew time to its
+    place at start, the place at start + that time, the slew time to that place, and the
+    place then (one iteration; the body moves under 1 arcsec/s, the mount degrees/s)."""
+    t0 = parse_time(start)
+    later = pointing_for(targets, site, name, t0, model=model)
+    for _ in range(2):
+        slew_s = slew_seconds_from_mount(scope, later, site)
+        later = pointing_for(targets, site, name, t0 + TimeDelta(slew_s, format="sec"),
+                             model=model)
+    if not later.allowed:
+        raise InterlockRefused(name, f"{later.refusal} at the end of the slew ({later.time})")
+    notify(f"{name} moves ({later.rate_ra_arcsec_s:+.4f}, {later.rate_dec_arcsec_s:+.4f} "
+           f"arcsec/s in RA cos Dec and Dec): sending its place at the slew's estimated end, "
+           f"{later.time} ({slew_s:.0f} s from now).")
+    return later
 
 
 def slew_to_target(scope: Telescope, targets: Targets, site: Site, name: str, *,
@@ -680,7 +769,7 @@ def _checked(scope: Telescope, targets: Targets, site: Site, name: str, sync: bo
     """The interlocks (a slew: now, at its end and along the track; a sync: now) and the
     clocks, before anything is sent."""
     if sync:
-        pointing = checked_pointing(targets, site, name, model=model)
+        pointing = checked_pointing(targets, site, name, model=model, notify=notify)
     else:
         pointing = checked_track(scope, targets, site, name, track_s, notify, model=model)
     scope.check_clock(name, notify)
@@ -725,6 +814,9 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
         return SlewReport(commanded_ra_deg=ra_deg, commanded_dec_deg=dec_deg,
                           pointing=pointing, aborted=True, **report)
     started = time.monotonic()
+    if pointing.is_body and not sync:
+        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify)
+        report.update(follow=follow, reslew_s=reslew_s)
     if pointing.command_eod_deg is not None:
         notify(f"Sky place of {name}: "
                f"{_place_text(command.coordinate_property, *sky_place(pointing, prop))}; "
@@ -766,6 +858,52 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
     return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
                       pointing=pointing, **report)
+
+
+def reslew_cadence(rate_arcsec_s: float, tolerance_arcsec: float) -> float:
+    """Seconds between re-slews keeping a body drifting at rate_arcsec_s within
+    +-tolerance_arcsec of the mount when each aims half an interval ahead: 2 * tolerance /
+    rate, bounded to [RESLEW_MIN_S, RESLEW_MAX_S]."""
+    if rate_arcsec_s <= 0.0:
+        return RESLEW_MAX_S
+    return float(np.clip(2.0 * tolerance_arcsec / rate_arcsec_s, RESLEW_MIN_S, RESLEW_MAX_S))
+
+
+def track_rates(pointing: Pointing) -> tuple[float, float]:
+    """INDI TELESCOPE_TRACK_RATE values (TRACK_RATE_RA, TRACK_RATE_DE; axis rates, arcsec
+    per SI second) that follow a body: the sidereal rate less its right-ascension rate,
+    and its declination rate (see the module docstring)."""
+    cos_dec = np.cos(pointing.dec_apparent_deg * DEG_TO_RAD)
+    return (INDI_SIDEREAL_ARCSEC_S - pointing.rate_ra_arcsec_s / max(cos_dec, 1e-6),
+            pointing.rate_dec_arcsec_s)
+
+
+def follow_body(scope: Telescope, pointing: Pointing, tolerance_arcsec: float,
+                token: int | None, notify: Notify = _silent) -> tuple[str, float | None]:
+    """Make the mount follow a body after its slew: its own tracking rate when the device
+    offers one ("track rate"), else re-slews at a cadence ("re-slew", the cadence in s)."""
+    drift = float(np.hypot(pointing.rate_ra_arcsec_s, pointing.rate_dec_arcsec_s))
+    if scope.offers_track_rate():
+        ra_axis, de_axis = track_rates(pointing)
+        try:
+            if not scope.set_track_rate(ra_axis, de_axis, token):
+                return "", None
+            notify(f"Tracking {pointing.name} at its own rate: {TRACK_RATE} RA {ra_axis:.6f}, "
+                   f"DE {de_axis:+.6f} arcsec/s (axis rates; sidereal "
+                   f"{INDI_SIDEREAL_ARCSEC_S:.6f}), {TRACK_MODE} TRACK_CUSTOM.")
+            return "track rate", None
+        except MountFailed as err:
+            notify(f"The device refused the custom tracking rate ({err}); re-slewing instead.")
+    cadence = reslew_cadence(drift, tolerance_arcsec)
+    worst = drift * cadence / 2.0
+    notify(f"{scope.device} offers no custom tracking rate ({TRACK_RATE} with TRACK_CUSTOM): "
+           f"it tracks sidereally and {pointing.name} drifts {drift:.4f} arcsec/s; while "
+           f"watched, it is re-slewed every {cadence:.0f} s, each aimed half an interval "
+           f"ahead, keeping within about {worst:.1f} arcsec"
+           + (f" (more than the {tolerance_arcsec:g} arcsec tolerance: re-slews are not made "
+              f"more often than every {RESLEW_MIN_S:g} s)" if worst > tolerance_arcsec * 1.001
+              else "") + ".")
+    return "re-slew", cadence
 
 
 def _follow(scope: Telescope, command: _Command, timeout_s: float, what: str, started: float,
