@@ -55,28 +55,31 @@ def dialog_choice(monkeypatch):
 
 
 def test_start_up_offers_every_recovery_file_with_name_and_time(make_window, dialog_choice,
-                                                                tmp_path):
+                                                                tmp_path, request):
     plan_path = str(tmp_path / "clear night.json")
     shutil.copyfile(DEMO_PLAN, plan_path)
     window = make_window(interactive=True)
+    request.addfinalizer(lambda: setattr(window, "interactive", False))  # no box at close
     folder = window.autosaver.folder
     kept_plan = _crashed_session(folder, plan_path, "typed before the crash")
     kept_untitled = _crashed_session(folder, None, "never saved")
 
+    written = {kept_plan: _utc(kept_plan), kept_untitled: _utc(kept_untitled)}
     dialog_choice["pick"] = "clear night.json"
     start_session(window)  # started without a file, as after a crash
     texts = dialog_choice["texts"]
     assert len(texts) == 2, texts
-    assert any("clear night.json" in t and _utc(kept_plan) in t for t in texts), texts
-    assert any("untitled" in t and _utc(kept_untitled) in t for t in texts), texts
+    assert any("clear night.json" in t and written[kept_plan] in t for t in texts), texts
+    assert any("untitled" in t and written[kept_untitled] in t for t in texts), texts
     # The chosen one is restored as that document, with its edit, not yet saved.
     assert window.document.path == plan_path and window.document.dirty
     assert window.document.value(0, "notes") == "typed before the crash"
     assert os.path.exists(kept_untitled)  # the other is left for later
 
 
-def test_not_now_keeps_every_recovery_file(make_window, dialog_choice, tmp_path):
+def test_not_now_keeps_every_recovery_file(make_window, dialog_choice, tmp_path, request):
     window = make_window(interactive=True)
+    request.addfinalizer(lambda: setattr(window, "interactive", False))  # no box at close
     kept = _crashed_session(window.autosaver.folder, None, "never saved")
     start_session(window)
     assert dialog_choice["texts"] and os.path.exists(kept)
@@ -84,7 +87,7 @@ def test_not_now_keeps_every_recovery_file(make_window, dialog_choice, tmp_path)
 
 
 def test_a_file_opened_at_start_is_not_offered_twice(make_window, dialog_choice, tmp_path,
-                                                     monkeypatch):
+                                                     monkeypatch, request):
     from PySide6.QtWidgets import QMessageBox
 
     monkeypatch.setattr(QMessageBox, "question",
@@ -92,6 +95,7 @@ def test_a_file_opened_at_start_is_not_offered_twice(make_window, dialog_choice,
     plan_path = str(tmp_path / "opened.json")
     shutil.copyfile(DEMO_PLAN, plan_path)
     window = make_window(interactive=True)
+    request.addfinalizer(lambda: setattr(window, "interactive", False))  # no box at close
     folder = window.autosaver.folder
     _crashed_session(folder, plan_path, "typed before the crash")
     os.utime(plan_path, (1, 1))  # the recovery file is newer than the plan

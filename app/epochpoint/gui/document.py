@@ -94,6 +94,9 @@ class Document(QObject):
         self.site, self.night = start.site, start.night
         self.tolerance = start.drift_tolerance_arcsec
         self.schedule: list = []
+        # True while the schedule is the one read from the file: nothing changed since, so
+        # the window shows it instead of searching again (gui.main_window).
+        self.schedule_from_file = False
         self.description = ""
         self.path: str | None = None
         self.generation = 0  # counts changes, so results can tell which state they belong to
@@ -242,6 +245,7 @@ class Document(QObject):
     def _touched(self) -> None:
         self.generation += 1
         self._targets_cache = None
+        self.schedule_from_file = False
 
     # ------------------------------------------------------------------ whole documents
     def load(self, doc: PlanDocument, path: str | None, dirty: bool = False) -> None:
@@ -254,6 +258,7 @@ class Document(QObject):
         self.path = path
         self._forced_dirty = dirty
         self._touched()
+        self.schedule_from_file = bool(self.schedule)
         self.rows_reset.emit()
         self.site_changed.emit(self.site)
         self.night_changed.emit(self.night)

@@ -40,7 +40,8 @@ from .menus import build_menus
 from .night_bar import NightBar
 from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
 from .panels.mount_panel import MountPanel
-from .recompute import night_plan, now_state, tonight_date
+from .recompute import night_plan_keeping, now_state, tonight_date
+from .schedule_changes import schedule_changes
 from .recovery import Autosaver
 from .status import StatusClocks
 from .target_model import COLUMNS, Computed, TargetFilterProxy, TargetTableModel
@@ -63,6 +64,7 @@ class MainWindow(FileActions, QMainWindow):
         self.selected: int | None = None
         self._plan_task = self._now_task = None
         self._plan_generation = -1
+        self.schedule_changes = None  # what the last search changed (schedule_changes.py)
         # Rows are numbered anew when targets are added or removed: a plan is drawn with the
         # selection, and its clicks are taken, only while it covers the rows as they are.
         self._rows_version = self._plan_rows_version = 0
@@ -342,19 +344,19 @@ class MainWindow(FileActions, QMainWindow):
         for panel in (self.drift, self.mount_panel):
             panel.set_selected(doc_row)
         for panel in (self.tonight, self.skydome):
-            panel.set_selected(doc_row if self._plan_covers_rows() else None)
+            panel.set_selected(None if self._stale_plan_shown() else doc_row)
         if doc_row is None:
             self.ledger.set_row(None)
         else:
             self.refresh_now()
 
-    def _plan_covers_rows(self) -> bool:
-        """Whether the shown plan numbers its targets as the document's rows are now."""
-        return self.plan is not None and self._plan_rows_version == self._rows_version
+    def _stale_plan_shown(self) -> bool:
+        """Whether the charts show a plan of an earlier list (rows numbered otherwise)."""
+        return self.plan is not None and self._plan_rows_version != self._rows_version
 
     def _on_chart_target(self, plan_index: int) -> None:
-        """A click on a chart's target: taken only while the chart's plan covers the rows."""
-        if self._plan_covers_rows():
+        """A click on a chart's target: taken unless the chart's plan is of an earlier list."""
+        if not self._stale_plan_shown():
             self.select_target(plan_index)
 
     def select_target(self, doc_row: int) -> None:
@@ -388,15 +390,22 @@ class MainWindow(FileActions, QMainWindow):
         if self._plan_task is not None:
             self._plan_task.cancel()
         generation = doc.generation
+        # A plan just opened shows its saved schedule; an edit or F5 (replan) searches anew.
+        saved = list(doc.schedule) if doc.schedule_from_file else None
         if doc.row_count() == 0:
-            self._on_plan(generation, None)
+            self._on_plan(generation, (None, False))
         else:
             self._plan_task = workers.run_in_worker(
-                self, night_plan, doc.targets(), doc.site, doc.night,
-                on_done=lambda plan: self._on_plan(generation, plan),
+                self, night_plan_keeping, doc.targets(), doc.site, doc.night, saved,
+                on_done=lambda result: self._on_plan(generation, result),
                 on_error=lambda message: self._on_failed("Planning the night", message),
                 progress_label="Planning the night…")
         self.refresh_now()
+
+    def replan(self) -> None:
+        """Plan the night again on request (F5), even when the saved schedule is shown."""
+        self.document.schedule_from_file = False
+        self.recompute()
 
     def refresh_now(self) -> None:
         """Positions at the shown instant for every target, and the selected target's
@@ -436,22 +445,36 @@ class MainWindow(FileActions, QMainWindow):
         self.instant_choice = "now"
         self.refresh_now()
 
-    def _on_plan(self, generation: int, plan) -> None:
+    def _on_plan(self, generation: int, result) -> None:
         if generation != self.document.generation:
             return  # the document changed meanwhile; a newer run is on its way
+        plan, kept = result
+        wanted_saved = self.document.schedule_from_file
         self.plan, self._plan_generation = plan, generation
         self._plan_rows_version = self._rows_version
+        self.schedule_changes = None
         if plan is not None:
-            self.document.schedule = schedule_entries(plan)
+            entries = schedule_entries(plan)
+            if not kept:  # what the new search changed against the schedule shown before
+                self.schedule_changes = schedule_changes(self.document.schedule, entries)
+            self.document.schedule = entries
         for panel in (self.tonight, self.skydome):
             panel.set_plan(plan)
             panel.set_selected(self.selected)
         self._sky_at_shown_instant()
         self._show_computed()
         if plan is not None:
-            scheduled = len(plan.schedule.index)
-            self.show_message(f"Night of {plan.night.date.isoformat()} planned: "
-                              f"{scheduled} blocks scheduled.", 5000)
+            self.show_message(self._plan_message(plan, kept, wanted_saved), 15000)
+
+    def _plan_message(self, plan, kept: bool, wanted_saved: bool) -> str:
+        night = f"Night of {plan.night.date.isoformat()}"
+        blocks = f"{len(plan.schedule.index)} blocks"
+        if kept:
+            return f"{night}: the saved schedule ({blocks}); F5 plans it again."
+        text = f"{night} planned: {blocks} scheduled; {self.schedule_changes.text()}."
+        if wanted_saved:
+            text += " (The saved schedule no longer fits the targets, site or night.)"
+        return text
 
     def _on_now(self, generation: int, state) -> None:
         if generation != self.document.generation:

@@ -62,8 +62,8 @@ def build_menus(window) -> dict:
     menu.addSeparator()
     a["filter"] = _action(w, menu, "&Find in list", keys.Find, w.focus_filter,
                           "Type to filter the target list")
-    a["recompute"] = _action(w, menu, "Re&compute now", "F5", w.recompute,
-                             "Plan the night and compute positions now")
+    a["recompute"] = _action(w, menu, "Re&compute now", "F5", w.replan,
+                             "Plan the night again and compute positions now")
 
     menu = bar.addMenu("&View")
     a["night"] = _action(w, menu, "&Night-vision theme", "Ctrl+Shift+N", w.toggle_night_theme,

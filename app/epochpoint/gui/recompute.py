@@ -1,6 +1,7 @@
 """The computations the app runs in worker threads: each is a thin call into epochpoint.core.
 
     night_plan(targets, site, night)                  -> core.plan.Plan
+    night_plan_keeping(targets, site, night, saved)   -> (core.plan.Plan, kept: bool)
     now_state(targets, site, when="now", selected=None, night_date=None) -> NowState
     tonight_date(site, when="now")                    -> 'YYYY-MM-DD'
 
@@ -23,7 +24,8 @@ import numpy as np
 from epochpoint.core.context import make_context
 from epochpoint.core.export import refusals, sun_separation_deg
 from epochpoint.core.night import night_boundaries, night_window
-from epochpoint.core.plan import plan
+from epochpoint.core.plan import SCHEDULE_ITERATIONS, SCHEDULE_SECONDS, SCHEDULE_SEED, plan
+from epochpoint.core.schedule_kept import keep_schedule
 from epochpoint.core.positions import positions
 from epochpoint.core.site import Site
 from epochpoint.core.targets import Targets
@@ -32,8 +34,20 @@ from epochpoint.io.planfile import NightSettings
 
 
 def night_plan(targets: Targets, site: Site, night: NightSettings):
-    """The night's plan for the document's targets (core.plan.plan with the night settings)."""
-    return plan(targets, site, night.date, **night.plan_options())
+    """The night's plan for the document's targets (core.plan.plan with the night settings),
+    searched as the command line searches by default: the same seed, iteration limit and time
+    limit, so the app and `epochpoint plan` give the same order."""
+    return plan(targets, site, night.date, max_seconds=SCHEDULE_SECONDS, seed=SCHEDULE_SEED,
+                max_iterations=SCHEDULE_ITERATIONS, **night.plan_options())
+
+
+def night_plan_keeping(targets: Targets, site: Site, night: NightSettings,
+                       saved: list | None = None):
+    """(plan, kept): the night's plan with the `saved` schedule entries put back when they
+    still fit it (core.schedule_kept), else with its own order (kept False)."""
+    result = night_plan(targets, site, night)
+    kept = keep_schedule(result, saved) if saved else None
+    return (kept, True) if kept is not None else (result, False)
 
 
 @dataclass

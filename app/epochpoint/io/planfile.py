@@ -31,9 +31,10 @@ with a trailing Z, dates YYYY-MM-DD::
          "ra_error": 0.031, ...,            # Gaia-archive error/correlation names, when known
          "priority": 2, "exposure": 120.0, "repeats": 3, "notes": "start early"}
       ],
-      "schedule": [                         # the last computed order, for reference only;
-        {"name": "Wick", "start": "2027-01-20T00:41:12.000Z",   # it is recomputed on opening
-         "end": "2027-01-20T00:47:12.000Z"}
+      "schedule": [                         # the last computed order; the app shows it
+        {"name": "Wick", "start": "2027-01-20T00:41:12.000Z",   # as saved when the plan is
+         "end": "2027-01-20T00:47:12.000Z"}   # opened (core.schedule_kept) and plans again
+                                              # only on request or after an edit
       ]
     }
 
@@ -105,7 +106,7 @@ class PlanDocument:
     night: NightSettings
     targets: Targets
     drift_tolerance_arcsec: float = DEFAULT_DRIFT_TOLERANCE_ARCSEC
-    schedule: list = field(default_factory=list)  # [{"name", "start", "end"}], reference only
+    schedule: list = field(default_factory=list)  # [{"name", "start", "end"}], kept on opening
     description: str = ""
 
 

@@ -29,8 +29,12 @@ device offers one: INDI's TELESCOPE_TRACK_RATE (TRACK_RATE_RA, TRACK_RATE_DE, ar
 second, the axes' rates: sidereal is 15.041067 in RA and 0 in Dec) and TELESCOPE_TRACK_MODE
 TRACK_CUSTOM. From the body's apparent rates (rate_ra including cos Dec, rate_dec; arcsec/s):
 TRACK_RATE_RA = 15.041067 - rate_ra / cos Dec (the hour-angle axis turns with the sky less
-the body's own eastward motion in right ascension) and TRACK_RATE_DE = rate_dec, as the INDI
-telescope simulator moves (measured: 30 and 10 gave -15 arcsec/s of RA and +10 of Dec).
+the body's own eastward motion in right ascension) and TRACK_RATE_DE = rate_dec, negated
+when the device reports TELESCOPE_PIER_SIDE PIER_WEST: the rate is the declination AXIS's,
+which turns the other way on that side of the pier. So the INDI telescope simulator (indi-bin
+1.9.9) moves, measured: RA 14.041067 gave +1.05 arcsec/s of RA; DE +1 gave +1.00 arcsec/s of
+Dec on PIER_EAST and -1.00 on PIER_WEST; it refuses to reverse a rate while tracking, so
+set_track_rate disengages tracking for such a change.
 Without those properties (or when the device refuses them) the mount tracks sidereally and
 the body drifts off at its apparent rate: the watch re-slews it every 2 * tolerance / rate
 seconds (aimed half an interval ahead, so the error stays within +-tolerance), bounded to
@@ -523,6 +527,11 @@ class Telescope:
                                           {"RA": ra_deg / 15.0, "DEC": dec_deg})
         return _Command(coords, ra_deg, dec_deg, serial, sync)
 
+    def pier_west(self) -> bool:
+        """True when the device reports TELESCOPE_PIER_SIDE PIER_WEST."""
+        side = self._vector("TELESCOPE_PIER_SIDE")
+        return side is not None and bool(side.values.get("PIER_WEST"))
+
     def offers_track_rate(self) -> bool:
         """Whether the device has INDI's custom tracking rate (TELESCOPE_TRACK_RATE with
         TRACK_RATE_RA and TRACK_RATE_DE, and TELESCOPE_TRACK_MODE with TRACK_CUSTOM)."""
@@ -538,14 +547,29 @@ class Telescope:
         with self._motion_lock:
             if token is not None and self.aborted_since(token):
                 return False
+        # Devices may refuse to reverse an axis's rate while tracking (the INDI simulator
+        # does): tracking is then disengaged for the change and engaged again.
+        before = self._vector(TRACK_RATE).values
+        reverses = any(np.sign(float(before.get(k, 0.0) or 0.0)) * np.sign(v) < 0
+                       for k, v in (("TRACK_RATE_RA", ra_axis_arcsec_s),
+                                    ("TRACK_RATE_DE", de_axis_arcsec_s)))
+        state = self._vector("TELESCOPE_TRACK_STATE")
+        pause = reverses and state is not None and bool(state.values.get("TRACK_ON"))
+        if pause:
+            self._switch_to("TELESCOPE_TRACK_STATE", "TRACK_OFF", timeout_s)
         try:
             self._set_and_wait(TRACK_RATE, {"TRACK_RATE_RA": ra_axis_arcsec_s,
                                             "TRACK_RATE_DE": de_axis_arcsec_s}, timeout_s)
         except IndiTimeout:
             raise MountFailed(f"device {self.device} did not answer {TRACK_RATE} within "
-                              f"{timeout_s:g} s") from None
+                              f"{timeout_s:g} s: {self.last_message()}") from None
         if not self._vector(TRACK_MODE).values.get("TRACK_CUSTOM"):
             self._switch_to(TRACK_MODE, "TRACK_CUSTOM", timeout_s)
+        if pause:
+            with self._motion_lock:
+                if token is not None and self.aborted_since(token):
+                    return False
+                self._switch_to("TELESCOPE_TRACK_STATE", "TRACK_ON", timeout_s)
         return True
 
     def stop_tracking(self) -> None:
@@ -814,7 +838,9 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
         return SlewReport(commanded_ra_deg=ra_deg, commanded_dec_deg=dec_deg,
                           pointing=pointing, aborted=True, **report)
     started = time.monotonic()
-    if pointing.is_body and not sync:
+    if pointing.is_body and not sync and not wait:
+        # Not following the slew: the rate is set now, for the device to track at after it
+        # (some devices, the INDI simulator among them, take it only once tracking).
         follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify)
         report.update(follow=follow, reslew_s=reslew_s)
     if pointing.command_eod_deg is not None:
@@ -854,6 +880,10 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
             residual = _residual(scope, command, targets, site, name, model)
             report.update(residual_arcsec=residual, final_state=state, refined=True,
                           aborted=stopped())
+    if pointing.is_body and not sync and state == "Ok" and not stopped():
+        # The slew ended with the mount tracking: now its rate is the body's.
+        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify)
+        report.update(follow=follow, reslew_s=reslew_s)
     v = scope.client.vector(scope.device, command.coordinate_property)
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
     return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
@@ -869,13 +899,14 @@ def reslew_cadence(rate_arcsec_s: float, tolerance_arcsec: float) -> float:
     return float(np.clip(2.0 * tolerance_arcsec / rate_arcsec_s, RESLEW_MIN_S, RESLEW_MAX_S))
 
 
-def track_rates(pointing: Pointing) -> tuple[float, float]:
+def track_rates(pointing: Pointing, pier_west: bool = False) -> tuple[float, float]:
     """INDI TELESCOPE_TRACK_RATE values (TRACK_RATE_RA, TRACK_RATE_DE; axis rates, arcsec
     per SI second) that follow a body: the sidereal rate less its right-ascension rate,
-    and its declination rate (see the module docstring)."""
+    and its declination rate, negated with the mount on the west of the pier (the
+    declination axis turns the other way there; see the module docstring)."""
     cos_dec = np.cos(pointing.dec_apparent_deg * DEG_TO_RAD)
-    return (INDI_SIDEREAL_ARCSEC_S - pointing.rate_ra_arcsec_s / max(cos_dec, 1e-6),
-            pointing.rate_dec_arcsec_s)
+    de_axis = -pointing.rate_dec_arcsec_s if pier_west else pointing.rate_dec_arcsec_s
+    return INDI_SIDEREAL_ARCSEC_S - pointing.rate_ra_arcsec_s / max(cos_dec, 1e-6), de_axis
 
 
 def follow_body(scope: Telescope, pointing: Pointing, tolerance_arcsec: float,
@@ -884,7 +915,7 @@ def follow_body(scope: Telescope, pointing: Pointing, tolerance_arcsec: float,
     offers one ("track rate"), else re-slews at a cadence ("re-slew", the cadence in s)."""
     drift = float(np.hypot(pointing.rate_ra_arcsec_s, pointing.rate_dec_arcsec_s))
     if scope.offers_track_rate():
-        ra_axis, de_axis = track_rates(pointing)
+        ra_axis, de_axis = track_rates(pointing, scope.pier_west())
         try:
             if not scope.set_track_rate(ra_axis, de_axis, token):
                 return "", None
