@@ -77,3 +77,27 @@ def test_nothing_imported_when_declined(make_window, bad_list, monkeypatch):
     assert len(seen) == 1
     assert _names(window) == before
     assert "Nothing imported" in window.statusBar().currentMessage()
+
+
+def test_file_open_offers_the_good_rows_too(make_window, bad_list, monkeypatch):
+    """File > Open of the same list: the same listed choice, and the good rows become the
+    (untitled) plan when the user takes them."""
+    seen = _answer(monkeypatch, QDialog.DialogCode.Accepted)
+    monkeypatch.setattr("epochpoint.gui.main_window.QMessageBox.warning",
+                        lambda *a: pytest.fail(f"error box shown: {a}"))
+    window = _window(make_window)
+    assert window.open_path(bad_list)
+    (rows,) = seen
+    assert [r[:3] for r in rows] == [("line 3", "Birch", "dec"), ("line 5", "Damson", "ra")]
+    assert _names(window) == ["Alder", "Cedar", "Elm"]
+    assert window.document.path is None and window.document.dirty
+    assert "2 unreadable row(s) left out" in window.statusBar().currentMessage()
+
+
+def test_file_open_declined_keeps_the_open_plan(make_window, bad_list, monkeypatch):
+    seen = _answer(monkeypatch, QDialog.DialogCode.Rejected)
+    window = _window(make_window)
+    before = _names(window)
+    assert not window.open_path(bad_list)
+    assert len(seen) == 1 and _names(window) == before
+    assert "Nothing opened" in window.statusBar().currentMessage()

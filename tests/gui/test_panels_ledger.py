@@ -105,3 +105,21 @@ def test_row_without_site_columns(panel, rows):
     panel.set_row(row)
     assert panel.effect_sizes()["Refraction"] == "—"
     assert panel.place_text("observed")[0] == "no site"
+
+
+def test_a_long_title_wraps_at_words_and_is_never_cut(qtbot):
+    """At a narrow width the title shows every word of a long target name: it lies inside the
+    panel and is tall enough for its wrapped lines (Qt's heightForWidth at its width)."""
+    panel = LedgerPanel()
+    qtbot.addWidget(panel)
+    panel.resize(360, 400)
+    name = "Brazilian Southern Survey Comparison Star Number Forty Two"
+    panel.set_row({"name": name, "instant_label": "01:40 -03", "refused": ""})
+    panel.show()
+    qtbot.waitExposed(panel)
+    qtbot.wait(50)
+    title = panel.title
+    assert name in title.text()
+    right = title.mapTo(panel, title.rect().topRight()).x()
+    assert right <= panel.width()
+    assert title.wordWrap() and title.height() >= title.heightForWidth(title.width())

@@ -38,7 +38,7 @@ def _target_value(window, doc_row: int, key: str):
     computed = window.model.computed
     if key in ("alt_now", "drift"):
         return float(getattr(computed, key)[doc_row])
-    if key in ("pointing", "tonight"):
+    if key in ("pointing", "tonight", "kind"):
         return window.model.data(window.model.index(window.model.model_row(doc_row),
                                                     [c.key for c in COLUMNS].index(key))).lower()
     value = window.document.value(doc_row, key)

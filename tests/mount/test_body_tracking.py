@@ -52,7 +52,7 @@ def test_the_simulator_tracks_the_body_at_its_own_rate(indi_server):
         scope.push_site(site)
         sent_at = Time.now()
         report = slew_to_target(scope, targets, site, "Body", wait=True, timeout_s=90.0,
-                                tolerance_arcsec=3600.0, track_s=60.0, notify=said.append)
+                                tolerance_arcsec=2.0, track_s=60.0, notify=said.append)
         assert report.follow == "track rate", said
         # The place commanded is the one at the slew's estimated end, not at the command.
         ahead_s = (Time(report.pointing.time.rstrip("Z")) - sent_at).sec
@@ -81,7 +81,9 @@ def test_the_simulator_tracks_the_body_at_its_own_rate(indi_server):
           f"{3600 * np.hypot(offsets[0][0] * cos_dec, offsets[0][1]):.2f} arcsec")
     assert max(drift) < FOLLOW_ARCSEC, drift
     first = 3600.0 * np.hypot(offsets[0][0] * cos_dec, offsets[0][1])
-    assert first < 5.0 + moved / WATCH_S * 5.0, first  # on the body, to the slew's timing
+    # On the body, to the simulator's slew accuracy (the star test's 5 arcsec) plus the
+    # diurnal aberration the reference includes and the mount is not sent (under 0.33").
+    assert first < 5.5, first
 
 
 def _peer_site_and_targets(now):

@@ -55,6 +55,17 @@ def chart_targets(plan, top_n: int) -> np.ndarray:
     return np.array([i for i in order if lengths[i] > 0][:top_n], dtype=int)
 
 
+def body_word(plan, i: int) -> str:
+    """' (Moon)', ' (planet)', ' (minor body)' for a body row of the plan (its line follows
+    the body's track, core/body_track.py), '' for a star."""
+    track = plan.windows.geometry.track
+    if track is None or track.slot[i] < 0:
+        return ""
+    name = track.names[track.slot[i]]
+    word = {"moon": "Moon", "sun": "Sun", "pluto": "dwarf planet", "": "minor body"}
+    return f" ({word.get(name, 'planet')})"
+
+
 def time_span(plan) -> tuple[float, float]:
     """Seconds (from t_ref) the chart covers: sunset to sunrise with half an hour either side."""
     sun = plan.night.spans.get("sun")
@@ -113,7 +124,7 @@ def draw_night_chart(figure: Figure, plan, top_n: int = 12, selected: int | None
         alt, _ = plan.windows.observed_altaz(np.full(t.shape, i), t)
         width = 2.4 if i == selected else 1.2
         ax.plot(x, alt, lw=width, color=colour, ls=dash, zorder=4,
-                label=str(plan.windows.names[i]))
+                label=str(plan.windows.names[i]) + body_word(plan, i), gid=f"target_{i}")
         if i in scheduled:
             s, e = scheduled[i]
             tb = np.linspace(s, e, 20)

@@ -51,6 +51,23 @@ def target_altaz(plan, t_seconds: float) -> tuple[np.ndarray, np.ndarray]:
     return plan.windows.observed_altaz(np.arange(n), np.full(n, float(t_seconds)))
 
 
+def body_paths(plan, samples: int = 241) -> dict:
+    """{target index: (observed altitude, azimuth) in deg} of each body row of the plan along
+    the chart's night (night_chart.time_span), from the plan's body track (core/body_track.py,
+    via the windows' observed_altaz): the moving path a body follows across the dome."""
+    from .night_chart import time_span
+
+    track = plan.windows.geometry.track
+    if track is None:
+        return {}
+    t = np.linspace(*time_span(plan), samples)
+    out = {}
+    for i in track.rows.tolist():
+        alt, az = plan.windows.observed_altaz(np.full(t.shape, i), t)
+        out[int(i)] = (alt, az)
+    return out
+
+
 def small_circle(alt0_deg: float, az0_deg: float, radius_deg: float, points: int = 181):
     """Altitudes and azimuths (deg) of the circle of angular radius `radius_deg` about a point.
 
@@ -134,6 +151,11 @@ def draw_sky_chart(figure: Figure, plan, t_seconds: float, selected: int | None 
                           mec=look["moon"], ls="none",
                           label=f"Moon {lit:.0%} lit" + ("" if moon_alt > 0 else " (down)")))
 
+    # Solar-system bodies: their paths across the sky through the night (the plan's tracks).
+    for i, (path_alt, path_az) in body_paths(plan).items():
+        shown = np.where(path_alt > 0.0, _zd(path_alt), np.nan)
+        ax.plot(np.radians(path_az), shown, color=look["muted"], lw=1.0, ls=(0, (1, 2)),
+                zorder=4, gid=f"body_path_{i}")
     # The targets above the horizon: observable now (every constraint met) or not.
     alt, az = target_altaz(plan, t_seconds)
     ok = observable_at(plan, t_seconds)

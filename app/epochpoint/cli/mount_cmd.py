@@ -32,6 +32,9 @@ def add_parser(sub) -> None:
                               description="Slew the mount to target NAME's apparent place of "
                                           "date (or its J2000 astrometric place when the device "
                                           "only takes J2000), tracking; --sync syncs instead. "
+                                          "A solar-system body is sent its place at the slew's "
+                                          "estimated end, then tracked at its own rate (or, "
+                                          "with --wait, re-slewed while watched). "
                                           "Every option is checked before the server is "
                                           "contacted.")
     # TARGETS NAME, like the other commands; the earlier `NAME --targets FILE` still works.
@@ -158,7 +161,8 @@ def _slew(args) -> int:
             try:
                 _say("Watch ended: " + watch_track(
                     scope, targets, site, name, seconds=args.track_minutes * 60.0,
-                    at_limit=args.at_limit, token=token, notify=_say) + ".")
+                    at_limit=args.at_limit, token=token, notify=_say,
+                    tolerance_arcsec=args.max_residual) + ".")
             except KeyboardInterrupt:
                 _say("Stopped watching; the mount keeps tracking, unwatched.")
     if report.residual_arcsec is None:

@@ -12,8 +12,9 @@ interpolation, e.g. Burden and Faires, Numerical Analysis, Theorem 3.3, with n =
 acceleration is measured from second differences of the exported coordinates themselves on a
 probe grid PROBE_STEP_S apart across the span, and the step is the largest of NICE_STEPS_S
 with a h^2 / 8 under half the export's tolerance (the other half a margin for the
-acceleration's change between probes). Measured: the Moon's topocentric apparent place,
-steps of 300 s for 1 arcsec; its altitude and azimuth, 60 s.
+acceleration's change between probes). Measured (tests/export/test_body_ephemeris.py, the
+Moon and Mars, 1 arcsec): apparent place, steps of 300 s, worst midpoint error 0.13 arcsec;
+altitude/azimuth and hour angle/declination, 60 s, worst 0.40 arcsec.
 
 Rates in each row are the positions() columns: rate_ra, rate_dec (apparent place of date, as
 seen from the site, arcsec/s, rate_ra including cos Dec) and rate_alt, rate_az.

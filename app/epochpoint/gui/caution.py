@@ -3,7 +3,8 @@ Help > Safety cautions."""
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QMessageBox, QWidget
+from PySide6.QtWidgets import (QFrame, QHBoxLayout, QLabel, QMessageBox, QVBoxLayout,
+                               QWidget)
 
 CAUTION_TEXT = ("Never point at or near the Sun without a proper solar filter. A moving mount "
                 "can injure: keep clear. Follow your observatory's procedures.")
@@ -43,10 +44,32 @@ class CautionStrip(QFrame):
         self.radius = QLabel()
         self.radius.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         self.radius.setStyleSheet("font-weight: bold;")
+        self.solar = QLabel()  # the Sun as a target: its caution, or why it is refused
+        self.solar.setObjectName("solarCaution")
+        self.solar.setWordWrap(True)
+        self.solar.setStyleSheet("font-weight: bold;")
+        self.solar.hide()
+        text_column = QVBoxLayout()
+        text_column.setSpacing(2)
+        text_column.addWidget(self.text)
+        text_column.addWidget(self.solar)
         layout.addWidget(mark)
-        layout.addWidget(self.text, 1)
+        layout.addLayout(text_column, 1)
         layout.addWidget(self.radius)
         self.set_sun_avoidance(30.0)
+
+    def set_solar(self, sun_target: bool, filter_fitted: bool) -> None:
+        """With a Sun row: SOLAR_CAUTION when the solar option is on, else the refusal and
+        its reason (core.limits); nothing without one."""
+        from epochpoint.core.limits import SOLAR_CAUTION, SUN_REFUSED
+
+        text = "" if not sun_target else SOLAR_CAUTION if filter_fitted else \
+            (f"Target {SUN_REFUSED}: the site's solar option (a full-aperture solar filter "
+             "declared fitted, [safety] solar_filter_fitted) is off.")
+        self.solar.setText(text)
+        self.solar.setVisible(bool(text))
+        self.setAccessibleDescription(" ".join(filter(None, (CAUTION_TEXT, text,
+                                                             self.radius.text()))))
 
     def set_sun_avoidance(self, radius_deg: float) -> None:
         if radius_deg > 0.0:

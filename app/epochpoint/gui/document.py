@@ -16,17 +16,26 @@ import numpy as np
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoStack
 
+from epochpoint.core.bodies.rows import BODY_COLUMNS, blank as _blank
 from epochpoint.core.site import Site
 from epochpoint.core.targets import TargetError, Targets
+from epochpoint.io.eventfields import EVENT_FIELDS
 from epochpoint.io.planfile import NightSettings, PlanDocument, check_night
 from epochpoint.io.planningfields import planning_columns
+from epochpoint.io.timeconstraintfields import TIME_FIELDS
 
 from . import commands
 
 ASTROMETRY_KEYS = ("ra", "dec", "epoch", "pm_ra_cosdec", "pm_dec", "parallax",
                    "radial_velocity")
 PLANNING_KEYS = ("priority", "exposure", "repeats", "notes")
+# A solar-system row's cells (core/bodies/rows.py): a body name or orbital elements, kept as
+# given (None when blank), present when the list has them; ra/dec are then placeholders.
+BODY_KEYS = BODY_COLUMNS
 COLUMN_KEYS = ("name",) + ASTROMETRY_KEYS + PLANNING_KEYS
+# Event ephemerides and time constraints, kept as the list's text (checked when it was read;
+# parsed for each plan by io.eventfields and io.timeconstraintfields, as the command line does).
+TIMING_KEYS = EVENT_FIELDS + TIME_FIELDS
 # The values a new target starts with (degrees, Julian year, mas/yr, mas, km/s, s).
 NEW_TARGET = {"ra": 0.0, "dec": 0.0, "epoch": 2000.0, "pm_ra_cosdec": 0.0, "pm_dec": 0.0,
               "parallax": 0.0, "radial_velocity": 0.0, "priority": 3, "exposure": 300.0,
@@ -69,7 +78,31 @@ def rows_from_targets(targets: Targets, path=None) -> RowState:
     for key in ASTROMETRY_KEYS:
         columns[key] = np.asarray(getattr(targets, key), dtype=float)
     columns.update(planning_columns(targets, path))
+    columns.update(timing_columns(targets))
+    columns.update(body_columns(targets))
     return RowState(columns, {k: np.asarray(v, dtype=float) for k, v in targets.errors.items()})
+
+
+def timing_columns(targets: Targets) -> dict:
+    """{field: object array of the cells' text (None when blank)} for the event and time
+    constraint columns the list has (labels matched without case or surrounding spaces)."""
+    out = {}
+    for label, values in targets.extra.items():
+        key = str(label).strip().lower()
+        if key in TIMING_KEYS:
+            out[key] = np.array([None if v is None else str(v) for v in values], dtype=object)
+    return out
+
+
+def body_columns(targets: Targets) -> dict:
+    """{body column: object array of its cells as given (None when blank)} for the body and
+    element columns the list has (core/bodies/rows.py reads them for every plan)."""
+    out = {}
+    for label, values in targets.extra.items():
+        key = str(label).strip().lower()
+        if key in BODY_KEYS:
+            out[key] = np.array([None if _blank(v) else v for v in values], dtype=object)
+    return out
 
 
 class Document(QObject):
@@ -127,9 +160,19 @@ class Document(QObject):
             c = self.rows.columns
             self._targets_cache = Targets.from_columns(
                 name=c["name"], errors=self.rows.errors,
-                extra={k: c[k] for k in PLANNING_KEYS},
+                extra={k: c[k] for k in PLANNING_KEYS + TIMING_KEYS + BODY_KEYS if k in c},
                 **{k: c[k] for k in ASTROMETRY_KEYS})
         return self._targets_cache
+
+    def kinds(self) -> np.ndarray:
+        """Each row's kind in words (core.bodies via gui.body_kinds), built once per rows."""
+        if getattr(self, "_kinds_for", None) is not self.rows:
+            from .body_kinds import row_kinds
+            self._kinds_for, self._kinds = self.rows, row_kinds(self.rows.columns)
+        return self._kinds
+
+    def is_body(self, row: int) -> bool:
+        return self.kinds()[row] != "star"
 
     def to_plan_document(self) -> PlanDocument:
         return PlanDocument(site=self.site, night=self.night, targets=self.targets(),
@@ -276,9 +319,14 @@ class Document(QObject):
 
 
 def _concat(first: RowState, second: RowState) -> RowState:
-    """Rows of `first` followed by `second`; error columns missing on one side become NaN."""
-    columns = {k: np.concatenate([first.columns[k], second.columns[k].astype(
-        first.columns[k].dtype)]) for k in first.columns}
+    """Rows of `first` followed by `second`; error columns missing on one side become NaN,
+    timing columns missing on one side blank."""
+    def column(state: RowState, key: str) -> np.ndarray:
+        return state.columns.get(key, np.full(len(state), None, dtype=object))
+
+    keys = list(first.columns) + [k for k in second.columns if k not in first.columns]
+    columns = {k: np.concatenate([column(first, k), column(second, k).astype(
+        column(first, k).dtype)]) for k in keys}
     errors = {}
     for key in list(first.errors) + [k for k in second.errors if k not in first.errors]:
         a = first.errors.get(key, np.full(len(first), np.nan))

@@ -39,7 +39,9 @@ from .instant import InstantBar, instant_label, utc_datetime
 from .menus import build_menus
 from .night_bar import NightBar
 from .panels import DriftPanel, LedgerPanel, SiteEditor, SkyDomePanel, TonightPanel
+from .panels.calendar_panel import CalendarPanel
 from .panels.mount_panel import MountPanel
+from .panels.pointing_panel import PointingPanel
 from .recompute import night_plan_keeping, now_state, tonight_date
 from .schedule_changes import schedule_changes
 from .recovery import Autosaver
@@ -188,6 +190,16 @@ class MainWindow(FileActions, QMainWindow):
         self.tonight.instant_clicked.connect(self.set_shown_instant)
         self.site_editor.site_edited.connect(self.document.replace_site)
         self.drift.tolerance_changed.connect(self._on_tolerance_edited)
+        # The coming nights as a calendar; a night picked there is planned here.
+        self.calendar = CalendarPanel(self)
+        self.tabs.addTab(self.calendar, "&Nights")
+        self.calendar.night_chosen.connect(self.open_night)
+        self.document.changed.connect(self._pass_inputs_to_calendar)
+        self._pass_inputs_to_calendar()
+        # The mount's pointing model, fitted to centred stars.
+        self.pointing_panel = PointingPanel(self)
+        self.pointing_panel.status_message.connect(self.show_message)
+        self.tabs.addTab(self.pointing_panel, "&Pointing model")
 
         self.splitter = QSplitter(Qt.Orientation.Horizontal)
         self.splitter.addWidget(left)
@@ -277,10 +289,12 @@ class MainWindow(FileActions, QMainWindow):
 
     def _on_site_changed(self, site) -> None:
         self.caution.set_sun_avoidance(site.interlocks.sun_avoidance)
+        self._show_solar_caution()
         self.site_note.setVisible(self.document.has_placeholder_site)
         self.clocks.set_site(site)
         self.site_editor.set_site(site)
         self.mount_panel.set_site(site)
+        self.pointing_panel.set_site(site)
 
     def _on_tolerance_changed(self, arcsec: float) -> None:
         self.drift.set_tolerance(arcsec)
@@ -298,8 +312,15 @@ class MainWindow(FileActions, QMainWindow):
             self.show_message(f"Night settings: {err}")
             self.night_bar.set_night(self.document.night)
 
+    def _show_solar_caution(self) -> None:
+        """The solar caution while a Sun row is present with the solar option on; with it
+        off, the reason the Sun is refused (gui.caution)."""
+        has_sun = bool((self.document.kinds() == "Sun").any())
+        self.caution.set_solar(has_sun, self.document.site.interlocks.solar_filter_fitted)
+
     def _on_rows_reset(self) -> None:
         self._rows_version += 1
+        self._show_solar_caution()
         self._set_selected(None)
         self._update_count()
         self._targets_for_drift = None
@@ -512,7 +533,8 @@ class MainWindow(FileActions, QMainWindow):
         if plan is not None and self._plan_generation == self.document.generation:
             tonight = plan.windows.reason
         self.model.set_computed(Computed(alt_now=now.alt, refused_now=now.refused,
-                                         tonight=tonight, drift=now.drift),
+                                         tonight=tonight, drift=now.drift,
+                                         ra_date=now.ra_date, dec_date=now.dec_date),
                                 keep=self._open_editor_cell())
 
     def _open_editor_cell(self):
@@ -573,6 +595,18 @@ class MainWindow(FileActions, QMainWindow):
     def show_tab(self, i: int) -> None:
         self.tabs.setCurrentIndex(i)
         self.tabs.currentWidget().setFocus()
+
+    def _pass_inputs_to_calendar(self) -> None:
+        doc = self.document
+        self.calendar.set_inputs(doc.targets(), doc.site, doc.night.darkness,
+                                 doc.night.min_altitude)
+
+    def open_night(self, date: str) -> None:
+        """Plan the night of `date` (picked in the Nights tab): the same undoable change as
+        the night bar's date, then the Tonight tab."""
+        if date != self.document.night.date:
+            self._on_night_edited(replace(self.document.night, date=date), "date")
+        self.show_tab(self.tabs.indexOf(self.tonight))
 
     # ================================================================== theme, help, messages
     def toggle_night_theme(self) -> None:

@@ -5,7 +5,9 @@ from __future__ import annotations
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QAction, QKeySequence
 
+from .body_dialogs import add_body_dialog, elements_dialog
 from .caution import show_safety_dialog
+from .star_dialog import add_star_dialog
 
 
 def _action(window, menu, text: str, shortcut, slot, tip: str = "",
@@ -57,6 +59,15 @@ def build_menus(window) -> dict:
     menu.addSeparator()
     a["add"] = _action(w, menu, "&Add target", "Ctrl+T", w.add_target,
                        "Append a new target and edit its name")
+    a["add_body"] = _action(w, menu, "Add the Moon or a &planet…", "Ctrl+Shift+T",
+                            lambda: add_body_dialog(w), "Append the Sun, the Moon or a "
+                            "planet; its place is computed at every instant")
+    a["add_elements"] = _action(w, menu, "Add minor bodies from &elements…", "Ctrl+Shift+E",
+                                lambda: elements_dialog(w), "Paste or read orbital elements "
+                                "(MPC one-line formats) of asteroids and comets")
+    a["add_star"] = _action(w, menu, "Add a star by &Hipparcos number…", "Ctrl+Shift+H",
+                            lambda: add_star_dialog(w), "Append a star of the Hipparcos "
+                            "catalogue, written HIP n")
     a["remove"] = _action(w, menu, "Re&move targets", "Ctrl+Del", w.remove_selected,
                           "Remove the selected targets (Delete in the list)")
     menu.addSeparator()
@@ -77,6 +88,9 @@ def build_menus(window) -> dict:
     for i, name in enumerate(("Tonight", "Sky dome", "Drift", "Site & limits", "Mount")):
         a[f"tab{i}"] = _action(w, menu, f"&{i + 1} {name.replace('&', '&&')}", f"Ctrl+{i + 1}",
                                lambda _=False, i=i: w.show_tab(i), f"Show {name}")
+    a["nights"] = _action(w, menu, "The coming ni&ghts", "Ctrl+Shift+C",
+                          lambda: w.show_tab(w.tabs.indexOf(w.calendar)),
+                          "Show the calendar of the coming nights and their timed events")
     a["ledger"] = w.ledger_dock.toggleViewAction()
     a["ledger"].setText("Correction &ledger")
     a["ledger"].setShortcut(QKeySequence("Ctrl+Shift+L"))

@@ -22,7 +22,7 @@ import datetime as dt
 import numpy as np
 
 from epochpoint.core.context import make_context
-from epochpoint.core.export import refusals, sun_separation_deg
+from epochpoint.core.export import refusals, sun_rows, sun_separation_deg
 from epochpoint.core.night import night_boundaries, night_window
 from epochpoint.core.plan import SCHEDULE_ITERATIONS, SCHEDULE_SECONDS, SCHEDULE_SEED, plan
 from epochpoint.core.schedule_kept import keep_schedule
@@ -36,9 +36,23 @@ from epochpoint.io.planfile import NightSettings
 def night_plan(targets: Targets, site: Site, night: NightSettings):
     """The night's plan for the document's targets (core.plan.plan with the night settings),
     searched as the command line searches by default: the same seed, iteration limit and time
-    limit, so the app and `epochpoint plan` give the same order."""
+    limit, so the app and `epochpoint plan` give the same order. Timed events get fixed-time
+    blocks and time constraints are honoured, as `epochpoint plan` does (timing_inputs)."""
+    events, constraints = timing_inputs(targets)
     return plan(targets, site, night.date, max_seconds=SCHEDULE_SECONDS, seed=SCHEDULE_SEED,
-                max_iterations=SCHEDULE_ITERATIONS, **night.plan_options())
+                max_iterations=SCHEDULE_ITERATIONS, events=events,
+                time_constraints=constraints, **night.plan_options())
+
+
+def timing_inputs(targets: Targets):
+    """(events, time constraints) of the targets for core.plan.plan: the event ephemerides
+    when the list has event columns (io.eventfields), the not_before/not_after and phase
+    windows when it has such columns (io.timeconstraintfields); None where it has none."""
+    from epochpoint.io.eventfields import event_ephemerides
+    from epochpoint.io.timeconstraintfields import time_constraints
+
+    events = event_ephemerides(targets) if "event_epoch" in targets.extra else None
+    return events, time_constraints(targets, events)
 
 
 def night_plan_keeping(targets: Targets, site: Site, night: NightSettings,
@@ -63,6 +77,8 @@ class NowState:
     ledger_row: dict | None     # LedgerPanel.set_row input for the selected target
     selected: int | None
     earth_orientation_warning: str | None
+    ra_date: np.ndarray | None = None   # body rows: topocentric apparent place of date (deg)
+    dec_date: np.ndarray | None = None  # NaN on star rows
 
 
 def tonight_date(site: Site, when="now") -> str:
@@ -100,8 +116,9 @@ def now_state(targets: Targets, site: Site, when="now", selected: int | None = N
     t, kind = shown_instant(site, when, night_date)
     ctx = make_context(t, site)
     pos = positions(targets, site, t, context=ctx)
-    sun_sep = sun_separation_deg(site, t, pos["ra_apparent"], pos["dec_apparent"])
-    refused = refusals(pos, site, sun_sep)
+    ra_date, dec_date, body_rows = bodies_of_date(targets, ctx, pos)
+    sun_sep = sun_separation_deg(site, t, ra_date, dec_date)
+    refused = refusals(pos, site, sun_sep, is_sun=sun_rows(targets))
     ledger_row = None
     if selected is not None and 0 <= selected < len(targets):
         one = positions(targets[selected], site, t, ledger=True, context=ctx)
@@ -109,12 +126,48 @@ def now_state(targets: Targets, site: Site, when="now", selected: int | None = N
         ledger_row["time"] = iso_z(t)
         ledger_row["refused"] = str(refused[selected])
         ledger_row["sun_separation"] = float(sun_sep[selected])
+    is_body = np.zeros(len(ra_date), dtype=bool)
+    is_body[body_rows] = True
     return NowState(time=iso_z(t), kind=kind, alt=pos["alt"], drift=pos["drift"], refused=refused,
                     sun_separation=sun_sep, ledger_row=ledger_row, selected=selected,
-                    earth_orientation_warning=ctx.eop_warning)
+                    earth_orientation_warning=ctx.eop_warning,
+                    ra_date=np.where(is_body, ra_date, np.nan),
+                    dec_date=np.where(is_body, dec_date, np.nan))
+
+
+def bodies_of_date(targets: Targets, ctx, pos) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Apparent RA, Dec (deg) for the Sun-avoidance check, and the body rows: the body rows'
+    topocentric apparent place of date (core.body_track.apparent_of_date, as the mount and
+    export use), the other rows' apparent place from positions()."""
+    from epochpoint.core.bodies.rows import sources_of
+
+    ra = np.array(pos["ra_apparent"], dtype=float)
+    dec = np.array(pos["dec_apparent"], dtype=float)
+    rows, sources = sources_of(targets)
+    if len(rows):
+        from epochpoint.core.body_track import apparent_of_date
+
+        ra_topo, dec_topo, _ = apparent_of_date(sources, [ctx])
+        ra[rows], dec[rows] = ra_topo[:, 0], dec_topo[:, 0]
+    return ra, dec, rows
 
 
 def _scalar(value):
     if isinstance(value, np.generic):
         return value.item()
     return value
+
+
+def calendar_of_nights(targets: Targets, site: Site, start: str, nights: int,
+                       darkness: str = "astronomical", min_altitude: float | None = None):
+    """The calendar of `nights` nights from `start` (core.night_calendar) with every timed
+    event touching their darkness, observable or not (epochpoint.events with include_all),
+    under the same darkness and altitude limit as the night's plan."""
+    import epochpoint as ep
+    from epochpoint.core.night_calendar import night_calendar
+
+    found = None
+    if len(targets) and "event_epoch" in targets.extra:
+        found = ep.events(targets, site, start, nights, darkness=darkness,
+                          min_altitude=min_altitude, include_all=True)
+    return night_calendar(site, start, nights, darkness=darkness, events=found)

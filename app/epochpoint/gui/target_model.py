@@ -31,6 +31,7 @@ from epochpoint.io.angles import format_dec_dms, format_ra_hms, parse_dec, parse
 from epochpoint.io.epochs import parse_epoch
 from epochpoint.io.planningfields import PARSERS
 
+from .number_text import fixed
 from .sorting import SORT_ROLE, sort_value
 from .themes import colours
 
@@ -50,6 +51,8 @@ class ColumnSpec:
 
 COLUMNS = (
     ColumnSpec("name", "Name", "Target name", 120, numeric=False),
+    ColumnSpec("kind", "Kind", "What the target is: star, Sun, Moon, planet, dwarf planet, "
+               "asteroid or comet", 64, numeric=False),
     ColumnSpec("ra", "RA (catalogue)", "Right ascension as catalogued (ICRS, at the "
                "catalogue epoch), h:m:s; type decimal ° or hh:mm:ss", 104),
     ColumnSpec("dec", "Dec (catalogue)", "Declination as catalogued (ICRS, at the catalogue "
@@ -74,6 +77,13 @@ COLUMNS = (
     ColumnSpec("notes", "Notes", "Free text", 240, numeric=False),
 )
 COLUMN_INDEX = {spec.key: i for i, spec in enumerate(COLUMNS)}
+# A body's place comes from the engine at each instant: its RA/Dec cells show the place of
+# date (read-only) and the catalogue columns do not apply to it.
+PLACE_KEYS = ("ra", "dec")
+CATALOGUE_KEYS = ("epoch", "pm_ra_cosdec", "pm_dec", "parallax", "radial_velocity")
+READ_ONLY_KEYS = ("kind",)
+BODY_PLACE_TIP = ("Place of date (topocentric apparent, true equator and equinox of date) at "
+                  "the shown instant, computed for this body")
 
 # Short words for the interlock reasons of core.limits.Interlocks.violations, in its order.
 POINTING_WORDS = (("Sun", "SUN"), ("minimum altitude", "too low"), ("horizon mask", "masked"),
@@ -100,6 +110,7 @@ def _epoch_text(values):
 # Display formatters: a whole column (numpy array) in, a list of strings out.
 DISPLAY = {
     "name": lambda values: [str(v) for v in values],
+    "kind": lambda values: [str(v) for v in values],
     "ra": lambda values: list(format_ra_hms(values, 2)),
     "dec": lambda values: list(format_dec_dms(values, 1)),
     "epoch": _epoch_text,
@@ -190,6 +201,8 @@ class Computed:
     refused_now: np.ndarray      # '' when pointing is allowed, else the reason
     tonight: np.ndarray | None   # '' when observable tonight, else the reason; None: unknown
     drift: np.ndarray            # arcsec
+    ra_date: np.ndarray | None = None   # body rows' place of date (deg), NaN for stars
+    dec_date: np.ndarray | None = None
 
 
 class TargetTableModel(QAbstractTableModel):
@@ -259,17 +272,25 @@ class TargetTableModel(QAbstractTableModel):
 
     def flags(self, index):
         base = Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
-        if index.isValid() and not COLUMNS[index.column()].computed:
-            base |= Qt.ItemFlag.ItemIsEditable
-        return base
+        if not index.isValid():
+            return base
+        key = COLUMNS[index.column()].key
+        if COLUMNS[index.column()].computed or key in READ_ONLY_KEYS:
+            return base
+        if key in PLACE_KEYS + CATALOGUE_KEYS and self.document.is_body(self.doc_row(index.row())):
+            return base
+        return base | Qt.ItemFlag.ItemIsEditable
 
     def data(self, index, role=Qt.ItemDataRole.DisplayRole):
         row, spec = self._order[index.row()], COLUMNS[index.column()]
         key = spec.key
+        if key in PLACE_KEYS + CATALOGUE_KEYS and self.document.is_body(row):
+            return self._body_cell(key, row, role)
         if role == Qt.ItemDataRole.DisplayRole:
             return self._display_list(key)[row]
         if role == Qt.ItemDataRole.EditRole:
-            return None if spec.computed else _edit_text(key, self.document.value(row, key))
+            return None if spec.computed or key in READ_ONLY_KEYS else \
+                _edit_text(key, self.document.value(row, key))
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if spec.numeric:
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
@@ -287,6 +308,41 @@ class TargetTableModel(QAbstractTableModel):
         if role == DOC_ROW_ROLE:
             return int(row)
         return None
+
+    def _body_cell(self, key: str, row: int, role):
+        """A body's RA/Dec (its place of date at the shown instant) and catalogue cells."""
+        if role == Qt.ItemDataRole.TextAlignmentRole:
+            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        if role == SORT_ROLE:
+            return sort_value(self._sort_keys_cell(key, row))
+        if role == DOC_ROW_ROLE:
+            return int(row)
+        if role == FILTER_ROLE:
+            return self._filter_list()[row]
+        place = self._place_of_date(key, row)
+        if role == Qt.ItemDataRole.DisplayRole:
+            if key not in PLACE_KEYS:
+                return ""
+            if place is None:
+                return "moves"
+            return format_ra_hms(place, 2) if key == "ra" else format_dec_dms(place, 1)
+        if role == Qt.ItemDataRole.ToolTipRole:
+            if key not in PLACE_KEYS:
+                return "Not used for a solar-system body"
+            if place is None:
+                return "A solar-system body: its place is computed at each instant"
+            return f"{BODY_PLACE_TIP}{self._instant_note()}: {place:.6f}°"
+        if role == Qt.ItemDataRole.ForegroundRole:
+            return self._brushes["muted"]
+        return None
+
+    def _place_of_date(self, key: str, row: int):
+        """A body's computed RA or Dec of date (deg), or None before a recompute."""
+        c = self.computed
+        values = None if c is None else (c.ra_date if key == "ra" else c.dec_date)
+        if values is None or not np.isfinite(values[row]):
+            return None
+        return float(values[row])
 
     def setData(self, index, value, role=Qt.ItemDataRole.EditRole):
         if role != Qt.ItemDataRole.EditRole or not index.isValid():
@@ -314,16 +370,23 @@ class TargetTableModel(QAbstractTableModel):
             n = self.document.row_count()
             return np.full(n, np.nan) if self.computed is None else \
                 np.asarray(getattr(self.computed, key), dtype=float)
-        if key in ("pointing", "tonight", "name", "notes"):
+        if key in ("pointing", "tonight", "name", "notes", "kind"):
             return np.array([s.lower() for s in self._display_list(key)], dtype=str)
-        return np.asarray(self.document.column(key), dtype=float)
+        values = np.array(self.document.column(key), dtype=float)
+        if key in PLACE_KEYS + CATALOGUE_KEYS:  # bodies: their place of date, else unknown
+            for row in np.flatnonzero(self.document.kinds() != "star").tolist():
+                values[row] = self._sort_keys_cell(key, row)
+        return values
 
     def _sort_keys_cell(self, key: str, row: int):
         """One cell's entry of _sort_keys (the value SORT_ROLE gives, for any other view)."""
         if key in ("alt_now", "drift"):
             return None if self.computed is None else float(getattr(self.computed, key)[row])
-        if key in ("pointing", "tonight", "name", "notes"):
+        if key in ("pointing", "tonight", "name", "notes", "kind"):
             return self._display_list(key)[row].lower()
+        if key in PLACE_KEYS + CATALOGUE_KEYS and self.document.is_body(row):
+            place = self._place_of_date(key, row) if key in PLACE_KEYS else None
+            return np.nan if place is None else place
         return float(self.document.value(row, key))
 
     def _apply_sort(self) -> None:
@@ -369,6 +432,8 @@ class TargetTableModel(QAbstractTableModel):
         computed_columns = [i for i, spec in enumerate(COLUMNS) if spec.computed]
         self._changed_around(min(computed_columns), max(computed_columns), keep)
         self._changed_around(COLUMN_INDEX["name"], COLUMN_INDEX["name"], keep)
+        if (self.document.kinds() != "star").any():  # bodies' places of date
+            self._changed_around(COLUMN_INDEX["ra"], COLUMN_INDEX["dec"], keep)
         if 0 <= self._sort_column < len(COLUMNS) and COLUMNS[self._sort_column].computed:
             if keep is None:
                 self._apply_sort()
@@ -410,7 +475,7 @@ class TargetTableModel(QAbstractTableModel):
         if c is None:
             return [""] * n
         if key == "alt_now":
-            return [f"{v:+.1f}" if np.isfinite(v) else "" for v in c.alt_now]
+            return [fixed(v, 1, signed=True) if np.isfinite(v) else "" for v in c.alt_now]
         if key == "pointing":
             return [pointing_word(r) for r in c.refused_now]
         if key == "tonight":
@@ -455,6 +520,8 @@ class TargetTableModel(QAbstractTableModel):
             self.column_builds += 1
             if COLUMNS[COLUMN_INDEX[key]].computed:
                 strings = self._computed_display(key)
+            elif key == "kind":
+                strings = DISPLAY[key](self.document.kinds())
             else:
                 strings = DISPLAY[key](self.document.column(key))
             self._display[key] = strings

@@ -43,7 +43,9 @@ motions (mas/yr, mas, km/s) to 0; errors (`ra_error`, ..., `ra_dec_corr`, ...) a
 when unknown; the planning fields follow planningfields.py. Every section except format,
 version, site and targets is optional. Any unknown key is an error, so a misspelt key never
 passes silently. Errors are one line naming the file and the place: the section and key, or
-the target's position, name and key.
+the target's position, name and key. A solar-system target also carries its body cells
+(core/bodies/rows.py: `body`, or orbital elements such as `eccentricity`), text or numbers,
+left out when blank; its ra and dec are placeholders.
 """
 from __future__ import annotations
 
@@ -55,6 +57,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from epochpoint.core.bodies.rows import BODY_COLUMNS as BODY_KEYS
 from epochpoint.core.plan import DARKNESS_LEVELS
 from epochpoint.core.site import Site
 from epochpoint.core.targets import (CORRELATION_COLUMNS, ERROR_COLUMNS, MOTION_COLUMNS,
@@ -76,7 +79,7 @@ NIGHT_KEYS = ("date", "darkness", "min_altitude", "max_airmass", "moon_separatio
               "moon_scaled")
 ASTROMETRY_KEYS = ("ra", "dec", "epoch") + MOTION_COLUMNS
 TARGET_KEYS = (("name",) + ASTROMETRY_KEYS + ERROR_COLUMNS + CORRELATION_COLUMNS
-               + PLANNING_FIELDS)
+               + PLANNING_FIELDS + BODY_KEYS)
 SCHEDULE_KEYS = ("name", "start", "end")
 
 
@@ -243,6 +246,7 @@ def _targets(path, items) -> Targets:
                   for key in ASTROMETRY_KEYS}
     errors = {}
     raw_planning = {key: np.full(n, None, dtype=object) for key in PLANNING_FIELDS}
+    body_cells = {}
     for i, item in enumerate(items):
         def fail(key, message, i=i, item=item):
             name = item.get("name") if isinstance(item, dict) else None
@@ -265,6 +269,10 @@ def _targets(path, items) -> Targets:
                 if key == "notes" and not isinstance(value, (str, type(None))):
                     raise fail(key, "must be text")
                 raw_planning[key][i] = value
+            elif key in BODY_KEYS:
+                if not (_is_number(value) or isinstance(value, str)):
+                    raise fail(key, f"{quote(value)} must be text or a number")
+                body_cells.setdefault(key, np.full(n, "", dtype=object))[i] = value
             elif key in ASTROMETRY_KEYS:
                 if not _is_number(value):
                     raise fail(key, f"{quote(value)} is not a number")
@@ -282,7 +290,21 @@ def _targets(path, items) -> Targets:
         raise InputError(path, str(err).split(": ", 1)[-1],
                          line=None if i is None else i + 1, column=err.column,
                          target=None if i is None else names[i], row_word="target") from None
-    return replace(targets, extra=planning_columns(targets, path))
+    if body_cells:
+        _check_bodies(path, body_cells, names)
+    return replace(targets, extra={**planning_columns(targets, path), **body_cells})
+
+
+def _check_bodies(path, cells: dict, names) -> None:
+    """Each body row by the engine's rules (core/bodies/rows.py), one line if bad."""
+    from epochpoint.core.bodies.rows import BodyRowError, body_rows, source_of_row
+
+    for i in np.flatnonzero(body_rows(cells, len(names))).tolist():
+        try:
+            source_of_row(cells, i, str(names[i]))
+        except BodyRowError as err:
+            raise InputError(path, str(err).split(": ", 1)[-1], line=i + 1, column=err.column,
+                             target=names[i], row_word="target") from None
 
 
 def _schedule(path, items) -> list[dict]:
@@ -315,6 +337,7 @@ def plan_to_json(doc: PlanDocument) -> dict:
         item["exposure"] = float(planning["exposure"][i])
         item["repeats"] = int(planning["repeats"][i])
         item["notes"] = str(planning["notes"][i])
+        item.update(_body_items(t, i))
         targets.append(item)
     night = {k: getattr(doc.night, k) for k in NIGHT_KEYS}
     data = {"format": FORMAT_NAME, "version": FORMAT_VERSION}
@@ -325,6 +348,21 @@ def plan_to_json(doc: PlanDocument) -> dict:
                  "targets": targets,
                  "schedule": [{k: e[k] for k in SCHEDULE_KEYS} for e in doc.schedule]})
     return data
+
+
+def _body_items(targets: Targets, i: int) -> dict:
+    """The non-blank body cells of row i (text as text, numbers as numbers)."""
+    out = {}
+    extra = {str(k).strip().lower(): v for k, v in targets.extra.items()}
+    for key in BODY_KEYS:
+        value = extra[key][i] if key in extra else None
+        if isinstance(value, (np.floating, np.integer)):
+            value = value.item()
+        if isinstance(value, str) and value.strip():
+            out[key] = value.strip()
+        elif _is_number(value):
+            out[key] = value
+    return out
 
 
 def plan_to_text(doc: PlanDocument) -> str:

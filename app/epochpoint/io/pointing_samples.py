@@ -91,3 +91,27 @@ def write_samples(path, rows) -> None:
         writer.writerow([row["time"], row["name"]] +
                         [repr(float(row[c])) for c in SAMPLE_HEADER[2:]])
     atomic_write_text(path, buffer.getvalue())
+
+
+def append_sample(path, sample: dict) -> None:
+    """Add one sample (dict with the SAMPLE_HEADER keys) to the end of a samples file, kept
+    whole otherwise (its other columns and comments); a new file gets SAMPLE_HEADER. A file
+    that is not a valid samples file is refused (InputError) and left untouched. Atomic."""
+    import os
+
+    if not os.path.exists(path):
+        write_samples(path, [sample])
+        return
+    read_samples(path)  # a bad file stops here, unchanged
+    with open(path, encoding="utf-8-sig", newline="") as handle:
+        text = handle.read()
+    header = next(r for r in csv.reader(io.StringIO(text))
+                  if r and any(c.strip() for c in r) and not r[0].lstrip().startswith("#"))
+    cells = {"time": sample["time"], "name": sample["name"],
+             **{c: repr(float(sample[c])) for c in SAMPLE_HEADER[2:]}}
+    buffer = io.StringIO()
+    csv.writer(buffer, lineterminator="\n").writerow(
+        [cells.get(label.strip().lower(), "") for label in header])
+    if text and not text.endswith(("\n", "\r")):
+        text += "\n"
+    atomic_write_text(path, text + buffer.getvalue())

@@ -19,6 +19,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QFrame, QGridLayout, QHBoxLayo
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
 from ...io.angles import format_dec_dms, format_hours, format_ra_hms
+from ..number_text import fixed
 from .theme_link import theme_colour, watch_theme
 
 EFFECTS = (
@@ -101,6 +102,8 @@ class LedgerPanel(QWidget):
         font.setBold(True)
         font.setPointSizeF(font.pointSizeF() * 1.15)
         self.title.setFont(font)
+        # A long target name wraps at its words, never cut off at the panel's edge.
+        self.title.setWordWrap(True)
         self.verdict = QLabel("")
         self.verdict.setObjectName("ledgerVerdict")
         self.verdict.setWordWrap(True)
@@ -154,13 +157,11 @@ class LedgerPanel(QWidget):
             self.place_values[key] = values
         self.places.setColumnStretch(3, 1)
 
-        # Effects on the left, places on the right: the ledger usually lives in a wide, low
-        # dock; a scroll area keeps everything reachable when it is small.
-        heading = QHBoxLayout()
-        heading.addWidget(self.title)
-        heading.addWidget(self.verdict, 1)
+        # The title spans the panel above everything (outside the scroll area, so it wraps to
+        # the width shown); effects on the left, places on the right: the ledger usually
+        # lives in a wide, low dock; a scroll area keeps everything reachable when it is small.
         left = QVBoxLayout()
-        left.addLayout(heading)
+        left.addWidget(self.verdict)
         left.addWidget(self.effects)
         left.addStretch(1)
         right = QVBoxLayout()
@@ -177,7 +178,8 @@ class LedgerPanel(QWidget):
         scroll.setWidget(inner)
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
-        layout.addWidget(scroll)
+        layout.addWidget(self.title)
+        layout.addWidget(scroll, 1)
         watch_theme(self, self._style_verdict)
         self.set_row(None)
 
@@ -254,12 +256,12 @@ class LedgerPanel(QWidget):
         show("observed", (f"HA {format_hours(ha, 2)}" if np.isfinite(ha) else "no site",
                           f"Dec {format_dec_dms(dec_obs, 1)}" if np.isfinite(dec_obs) else ""))
         alt, az = _number(row, "alt"), _number(row, "az")
-        show("horizon", (f"Alt {alt:+.4f}°" if np.isfinite(alt) else "",
-                         f"Az {az:.4f}°" if np.isfinite(az) else ""))
+        show("horizon", (f"Alt {fixed(alt, 4, signed=True)}°" if np.isfinite(alt) else "",
+                         f"Az {fixed(az, 4)}°" if np.isfinite(az) else ""))
         airmass, pa = _number(row, "airmass"), _number(row, "parallactic_angle")
         show("geometry", (f"airmass {airmass:.3f}" if np.isfinite(airmass)
                           else ("below the horizon" if np.isfinite(alt) else ""),
-                          f"parallactic angle {pa:+.2f}°" if np.isfinite(pa) else ""))
+                          f"parallactic angle {fixed(pa, 2, signed=True)}°" if np.isfinite(pa) else ""))
         kind = str(row.get("instant_kind") or "")
         local = str(row.get("instant_label") or "")
         show("instant", (str(row.get("time") or ""),

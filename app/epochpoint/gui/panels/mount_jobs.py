@@ -110,3 +110,14 @@ class MountJob(QObject):
             self.said.emit(payload)
         else:
             self.finished.emit()
+
+
+def record_to_file(scope: Telescope, targets, site, name: str, path: str) -> dict:
+    """Read where the mount's axes are on the centred star `name` (mount.calibration) and
+    append that sample to the samples file `path` (io.pointing_samples); the sample."""
+    from ...io.pointing_samples import append_sample
+    from ...mount.calibration import read_sample
+
+    sample = read_sample(scope, targets, site, name)
+    append_sample(path, sample)
+    return sample

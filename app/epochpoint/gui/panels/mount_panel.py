@@ -30,9 +30,12 @@ from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import (CAUTION, ConnectionLost, Telescope, pointing_for, slew_to_target,
                       watch_track)
 from ...mount.telescope import FRAME_TEXT
-from .mount_jobs import JOIN_TIMEOUT_S, MountJob, one_line, open_mount, switch_device
+from .mount_jobs import (JOIN_TIMEOUT_S, MountJob, one_line, open_mount, record_to_file,
+                         switch_device)
+from .mount_pointing import MountPointingRow
 from .mount_text import ConfirmMotionDialog, confirmation_text, report_text
 from ..document import PLACEHOLDER_SITE_NAME
+from ..number_text import fixed
 from .theme_link import theme_colour, theme_name, watch_theme
 
 DEFAULT_ADDRESS = "localhost:7624"
@@ -198,6 +201,12 @@ class MountPanel(QWidget):
         commands.addStretch(1)
         target_layout.addLayout(commands)
         target_layout.addWidget(self.why_label)
+        # Slewing with a pointing model, and recording centred stars for one.
+        self.pointing_row = MountPointingRow(self)
+        self.pointing_row.model_changed.connect(self._verdict_changed)
+        self.pointing_row.record_requested.connect(self.record_sample)
+        self.pointing_row.said.connect(self._log)
+        target_layout.addWidget(self.pointing_row)
 
         # ABORT: big, and enabled whenever a mount is connected.
         self.abort_button = QPushButton("ABORT\nEsc anywhere while it moves · Ctrl+Shift+A")
@@ -299,7 +308,8 @@ class MountPanel(QWidget):
         if then is not None:
             self._confirm_serial = serial
         one, site = self.targets[[self.selected]], self.site
-        job = self._start("interlock check", pointing_for, one, site, name, "now")
+        job = self._start("interlock check", pointing_for, one, site, name, "now",
+                          model=self.pointing_row.model_in_use())
         job.done.connect(lambda pointing: self._on_checked(
             serial, pointing, then and (lambda p: then(p, one, site))))
         job.failed.connect(lambda err: self._on_check_failed(serial, err))
@@ -360,8 +370,8 @@ class MountPanel(QWidget):
                  f"{format_dec_dms(p.dec_apparent_deg, 1)} (of date)")
         self.target_place_label.setText(f"{name}: {place}")
         geometry = (f"Now ({p.time}; a slew or sync always uses the present, whatever "
-                    f"instant the list shows): altitude {p.alt_deg:.2f}°, azimuth "
-                    f"{p.az_deg:.2f}°, "
+                    f"instant the list shows): altitude {fixed(p.alt_deg, 2)}°, azimuth "
+                    f"{fixed(p.az_deg, 2)}°, "
                     f"{p.sun_separation_deg:.1f}° from the Sun. {place}.")
         if p.allowed:
             self.verdict_label.setText(f"Allowed by the site's interlocks. {geometry}")
@@ -598,9 +608,12 @@ class MountPanel(QWidget):
             self._log(f"The confirmation took over {CONFIRM_FRESH_S:g} s; nothing was sent. "
                       "Press again to see the place now.")
             return
+        model = self.pointing_row.model_in_use()
         if self._motion_blocked() or scope is not self.scope or site is not self.site or \
-                pointing.name != self.selected_name():
-            self._log("Nothing was sent: the connection, the site or the selection changed.")
+                pointing.name != self.selected_name() or \
+                (model is None) != (pointing.command_eod_deg is None):
+            self._log("Nothing was sent: the connection, the site, the selection or the "
+                      "pointing model changed.")
             return
         name = pointing.name
         # The command begins at the confirmation: an ABORT pressed from now on stops it.
@@ -613,7 +626,7 @@ class MountPanel(QWidget):
         job = self._start(what, slew_to_target, scope, one, site, name, sync=sync,
                           wait=True, timeout_s=self.timeout_spin.value(),
                           tolerance_arcsec=self.tolerance_spin.value(), token=token,
-                          track=True)
+                          track=True, model=model)
         self.motion_job = job
         job.done.connect(self._on_motion_done)
         job.failed.connect(self._on_motion_failed)
@@ -641,6 +654,38 @@ class MountPanel(QWidget):
         job = self._start("watch", watch_track, scope, one, site, name, token=token,
                           stop=self._watch_stop, track=True)
         job.done.connect(lambda why: self._log(f"Watch of {name} ended: {why}."))
+
+    def _record_target(self):
+        """(scope, one, site, name) of the star the last slew reached, while it is still
+        the selected target; else None."""
+        report, watched = self.last_report, self._watched
+        if report is None or watched is None or report.action != "slew" or report.aborted \
+                or report.final_state != "Ok" or watched[0] is not self.scope \
+                or watched[3] != self.selected_name():
+            return None
+        return watched[:4]
+
+    def record_sample(self) -> None:
+        """Append where the axes are now, on the centred star, to the samples file."""
+        target, path = self._record_target(), self.pointing_row.samples_path()
+        if self._motion_blocked() or target is None:
+            return
+        if not path:
+            self._log("Choose a samples file to record into first.")
+            return
+        scope, one, site, name = target
+        self.busy_job = self._start("record", record_to_file, scope, one, site, name, path)
+        self.busy_job.done.connect(lambda sample: self._on_recorded(sample, path))
+        self.busy_job.failed.connect(self._on_pushed)
+        self._update_controls()
+
+    def _on_recorded(self, sample, path: str) -> None:
+        self.busy_job = None
+        dha = ((sample["ha_mount"] - sample["ha_target"] + 180.0) % 360.0 - 180.0) * 3600.0
+        ddec = (sample["dec_mount"] - sample["dec_target"]) * 3600.0
+        self._log(f"Recorded {sample['name']} into {path}: mount minus star {dha:+.1f}″ in "
+                  f"hour angle, {ddec:+.1f}″ in declination.")
+        self._update_controls()
 
     def _on_motion_failed(self, err) -> None:
         self.motion_job = None
@@ -721,6 +766,8 @@ class MountPanel(QWidget):
             button.setToolTip(why or ("Check the interlocks again, then confirm the "
                                       "coordinates before anything is sent"))
         self.why_label.setText(why)
+        self.pointing_row.record_button.setEnabled(
+            connected and not moving and not busy and self._record_target() is not None)
         self._colour(self.why_label, "danger" if "refused" in why or "placeholder" in why
                      else None)
 

@@ -8,15 +8,27 @@ from PySide6.QtWidgets import QDialog, QDialogButtonBox, QLabel, QVBoxLayout
 
 from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import CAUTION
-from ...mount.telescope import FRAME_TEXT, J2000_COORD
+from ...mount.telescope import FRAME_TEXT, J2000_COORD, command_place, sky_place
+from ..number_text import fixed
 
 
 def sent_place(pointing, coordinate_property: str | None) -> tuple[float, float, str]:
-    """(RA deg, Dec deg, frame text) that Telescope.command sends for this pointing."""
-    if coordinate_property == J2000_COORD:
-        return pointing.ra_j2000_deg, pointing.dec_j2000_deg, FRAME_TEXT[J2000_COORD]
-    return (pointing.ra_apparent_deg, pointing.dec_apparent_deg,
-            FRAME_TEXT["EQUATORIAL_EOD_COORD"])
+    """(RA deg, Dec deg, frame text) that Telescope.command sends for this pointing (the
+    model-corrected place when it has one)."""
+    prop = J2000_COORD if coordinate_property == J2000_COORD else "EQUATORIAL_EOD_COORD"
+    return (*command_place(pointing, prop), FRAME_TEXT[prop])
+
+
+def _model_lines(pointing, coordinate_property: str | None) -> list[str]:
+    """With a pointing model: the sky place the model corrects, and the axes it commands."""
+    if pointing.command_eod_deg is None:
+        return []
+    prop = J2000_COORD if coordinate_property == J2000_COORD else "EQUATORIAL_EOD_COORD"
+    ra_sky, dec_sky = sky_place(pointing, prop)
+    return [f"These are corrected by the pointing model. Sky place of {pointing.name} "
+            f"without it: RA {format_ra_hms(ra_sky, 2)}  Dec {format_dec_dms(dec_sky, 1)}; "
+            f"the axes go to hour angle {fixed(pointing.axes_deg[0], 4, signed=True)}°, "
+            f"declination {fixed(pointing.axes_deg[1], 4, signed=True)}°."]
 
 
 def confirmation_text(pointing, sync: bool, device: str, coordinate_property: str | None,
@@ -31,9 +43,10 @@ def confirmation_text(pointing, sync: bool, device: str, coordinate_property: st
         "",
         f"Coordinates to send ({coordinate_property or 'EQUATORIAL_EOD_COORD'}, {frame}):",
         f"    RA   {format_ra_hms(ra_deg, 2)}   ({ra_deg / 15.0:.8f} h)",
-        f"    Dec  {format_dec_dms(dec_deg, 1)}   ({dec_deg:+.7f}°)",
-        f"{pointing.name} at {pointing.time}: altitude {pointing.alt_deg:.2f}°, azimuth "
-        f"{pointing.az_deg:.2f}°, {pointing.sun_separation_deg:.1f}° from the Sun "
+        f"    Dec  {format_dec_dms(dec_deg, 1)}   ({fixed(dec_deg, 7, signed=True)}°)",
+        *_model_lines(pointing, coordinate_property),
+        f"{pointing.name} at {pointing.time}: altitude {fixed(pointing.alt_deg, 2)}°, azimuth "
+        f"{fixed(pointing.az_deg, 2)}°, {pointing.sun_separation_deg:.1f}° from the Sun "
         f"(avoidance radius {sun_avoidance_deg:g}°).",
         "",
     ]

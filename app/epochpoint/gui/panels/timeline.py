@@ -1,16 +1,17 @@
 """The schedule timeline: the night's observing blocks on a local-time axis.
 
 A light painted widget under the night chart: the darkness levels as bands, each scheduled
-block as a box named for its target (in the colour of its line on the chart), hourly ticks
-in the site's local time and a marker for the window's shown instant. Clicking a block selects
-it; any click in the night moves the shown instant there (seconds_clicked).
+block as a box named for its target (in the colour of its line on the chart), each block
+reserved for a timed event (core.plan_events) hatched and outlined so it reads as fixed,
+hourly ticks in the site's local time and a marker for the window's shown instant. Clicking a
+block selects it; any click in the night moves the shown instant there (seconds_clicked).
 """
 from __future__ import annotations
 
 import datetime as dt
 
 from PySide6.QtCore import QRectF, Qt, Signal
-from PySide6.QtGui import QColor, QFont, QPainter, QPen
+from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPen
 from PySide6.QtWidgets import QToolTip, QWidget
 
 from ...charts.chart_style import is_dark, resolve_style
@@ -97,8 +98,17 @@ class ScheduleTimeline(QWidget):
                         float(start), float(end)))
         return out
 
+    def fixed_rects(self) -> list:
+        """(target index, QRectF, start_s, end_s) of every block reserved for a timed event."""
+        reservations = None if self.plan is None else self.plan.reservations
+        if reservations is None:
+            return []
+        return [(int(b.index), QRectF(self.x_of(b.start_s), 3.0, max(
+            2.0, self.x_of(b.end_s) - self.x_of(b.start_s)), BAND_HEIGHT_PX - 6.0),
+                 float(b.start_s), float(b.end_s)) for b in reservations.fixed]
+
     def block_at(self, x_px: float, y_px: float):
-        for i, rect, start, end in self.block_rects():
+        for i, rect, start, end in self.block_rects() + self.fixed_rects():
             if rect.adjusted(-1, -4, 1, 4).contains(x_px, y_px):
                 return i, start, end
         return None
@@ -123,6 +133,7 @@ class ScheduleTimeline(QWidget):
             painter.fillRect(QRectF(self.x_of(a), 0.0, self.x_of(b) - self.x_of(a),
                                     BAND_HEIGHT_PX), colour)
         self._paint_blocks(painter, look)
+        self._paint_fixed(painter, look)
         self._paint_ticks(painter, text)
         self._paint_instant(painter, look)
 
@@ -157,6 +168,26 @@ class ScheduleTimeline(QWidget):
                 w = painter.fontMetrics().horizontalAdvance(label)
                 painter.drawText(int(-w / 2), int(painter.fontMetrics().ascent() / 2 - 1), label)
                 painter.restore()
+
+    def _paint_fixed(self, painter: QPainter, look: dict) -> None:
+        """Reserved event blocks: diagonal hatching in the observable colour under a solid
+        outline, named for the target and the event."""
+        names = self.plan.windows.names
+        colour = QColor(look["observable"])
+        for i, rect, _, _ in self.fixed_rects():
+            painter.setPen(Qt.PenStyle.NoPen)
+            painter.setBrush(QBrush(colour, Qt.BrushStyle.BDiagPattern))
+            painter.drawRect(rect)
+            width = 3.0 if i == self.selected else 2.0
+            painter.setPen(QPen(QColor(look["accent"] if i == self.selected else colour), width))
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+            painter.drawRect(rect)
+            label = painter.fontMetrics().elidedText(f"{names[i]} (fixed)",
+                                                     Qt.TextElideMode.ElideRight,
+                                                     int(rect.width()) - 6)
+            if label and label != "…":
+                painter.setPen(QColor(look["foreground"]))
+                painter.drawText(rect, Qt.AlignmentFlag.AlignCenter, label)
 
     def _paint_ticks(self, painter: QPainter, text: QColor) -> None:
         painter.setPen(text)

@@ -21,6 +21,7 @@ from ...charts.plan_clock import clock_text
 from ...core.constants import DEG_TO_RAD
 from ...core.observed import kasten_young_airmass
 from ..instant import utc_datetime
+from ..number_text import fixed
 from .chart_canvas import ChartCanvas, nearest_point
 from .theme_link import theme_chart_style, watch_theme
 from .timeline import ScheduleTimeline
@@ -180,7 +181,7 @@ class TonightPanel(QWidget):
             index, _, alt = hit
             airmass = kasten_young_airmass(np.array([alt * DEG_TO_RAD]))[0]
             airmass_text = f"airmass {airmass:.2f}" if np.isfinite(airmass) else "below horizon"
-            text += f"   {self.plan.windows.names[index]}: altitude {alt:.1f}°, {airmass_text}"
+            text += f"   {self.plan.windows.names[index]}: altitude {fixed(alt, 1)}°, {airmass_text}"
         self.readout.setText(text)
 
     def _clear_readout(self) -> None:
