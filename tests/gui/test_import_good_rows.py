@@ -96,8 +96,11 @@ def test_file_open_offers_the_good_rows_too(make_window, bad_list, monkeypatch):
 
 def test_file_open_declined_keeps_the_open_plan(make_window, bad_list, monkeypatch):
     seen = _answer(monkeypatch, QDialog.DialogCode.Rejected)
+    boxes = []
+    monkeypatch.setattr("epochpoint.gui.main_window.QMessageBox.warning",
+                        lambda *a: boxes.append(a))
     window = _window(make_window)
     before = _names(window)
     assert not window.open_path(bad_list)
-    assert len(seen) == 1 and _names(window) == before
+    assert len(seen) == 1 and _names(window) == before and not boxes
     assert "Nothing opened" in window.statusBar().currentMessage()

@@ -200,6 +200,27 @@ def test_connect_fills_the_devices_and_the_status_box(qtbot, panel, indi_server)
     assert panel.our_clock_label.text().endswith("Z")
 
 
+def test_connect_stays_disabled_while_connected(qtbot, panel, indi_server):
+    """Connect is offered only without a live connection: not after connecting, nor after a
+    site, target list, selection or status refresh (each re-enables controls); Disconnect is
+    the way out, and Connect comes back after it."""
+    assert panel.connect_button.isEnabled() and not panel.disconnect_button.isEnabled()
+    _connect(qtbot, panel, indi_server)
+    assert not panel.connect_button.isEnabled() and not panel.address_edit.isEnabled()
+    assert panel.disconnect_button.isEnabled()
+    targets = _forbidden()
+    for step in (lambda: panel.set_site(SITE), lambda: _select(qtbot, panel, targets, 0),
+                 lambda: _select(qtbot, panel, targets, 1), panel.refresh_status,
+                 lambda: panel.set_selected(None)):
+        step()
+        qtbot.wait(200)
+        assert panel.is_connected and not panel.connect_button.isEnabled()
+    qtbot.mouseClick(panel.disconnect_button, Qt.MouseButton.LeftButton)
+    qtbot.waitUntil(lambda: not panel.is_connected and panel.busy_job is None,
+                    timeout=WAIT_MS)
+    assert panel.connect_button.isEnabled() and not panel.disconnect_button.isEnabled()
+
+
 def test_refused_targets_keep_slew_and_sync_disabled_with_the_reason(qtbot, panel,
                                                                       indi_server,
                                                                       confirmations):

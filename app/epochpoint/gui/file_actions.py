@@ -48,6 +48,9 @@ class FileActions:
             if offer_recovery and self._open_recovery_of_unreadable(path, err, site_spec,
                                                                     night):
                 return True
+            opened = self._open_good_rows(path, err, site_spec, night)
+            if opened is not None:
+                return opened
             self.show_error("Cannot open", one_line(err))
             return False
         restored = False
@@ -82,6 +85,31 @@ class FileActions:
         self.document.load(doc, path, dirty=True)
         self._remember(path)
         self.show_message(f"Opened the recovered changes of {path} (not yet saved)")
+        self.recompute_timer.start()
+        return True
+
+    def _open_good_rows(self, path: str, err, site_spec, night) -> bool | None:
+        """A target list with bad rows: offer its good rows, as the import does (None when
+        there is nothing to offer: a plan file, a file unreadable as a whole, no dialogs)."""
+        if is_plan_file(path) or not isinstance(err, InputError) or err.line is None \
+                or not self.interactive:
+            return None
+        partial = read_good_rows(path)
+        if partial is None:
+            return None
+        targets, refused = partial
+        if not self.confirm_good_rows(path, refused, len(targets)):
+            self.show_message(f"Nothing opened: {len(refused)} row(s) of {path} cannot be "
+                              "read.", 15000)
+            return False
+        try:
+            doc, kept_path = load_path(path, site_spec, night, targets=targets)
+        except (InputError, ValueError, OSError) as other:
+            self.show_error("Cannot open", one_line(other))
+            return False
+        self.document.load(doc, kept_path, dirty=True)
+        self.show_message(f"Opened {len(targets)} targets from {path}; {len(refused)} "
+                          "unreadable row(s) left out", 15000)
         self.recompute_timer.start()
         return True
 

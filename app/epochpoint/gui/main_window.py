@@ -46,6 +46,7 @@ from .recompute import night_plan_keeping, now_state, tonight_date
 from .schedule_changes import schedule_changes
 from .recovery import Autosaver
 from .status import StatusClocks
+from .tab_order import ScreenTabOrder
 from .target_model import COLUMNS, Computed, TargetFilterProxy, TargetTableModel
 
 RECOMPUTE_DELAY_MS = 300
@@ -235,12 +236,18 @@ class MainWindow(FileActions, QMainWindow):
         self.addDockWidget(Qt.DockWidgetArea.BottomDockWidgetArea, self.ledger_dock)
         self.resizeDocks([self.ledger_dock], [LEDGER_HEIGHT], Qt.Orientation.Vertical)
 
-        # Tab order: filter, table, night settings, tabs (the panels follow their own order).
+        # Tab order: filter, table, night settings, tabs; inside each panel (a tab's page or
+        # the ledger), the screen order (tab_order.py), pages added later included.
         bar = self.night_bar
         chain = [self.filter_box, self.table, bar.date, bar.darkness, bar.min_alt,
                  bar.max_airmass, bar.moon_sep, bar.moon_scaled, self.tabs]
         for first, second in zip(chain, chain[1:]):
             QWidget.setTabOrder(first, second)
+        self.screen_tab_order = ScreenTabOrder(self)
+        for panel in [self.ledger] + [self.tabs.widget(i) for i in range(self.tabs.count())]:
+            self.screen_tab_order.watch(panel)
+        self.tabs.currentChanged.connect(
+            lambda i: self.screen_tab_order.watch(self.tabs.widget(i)))
 
     def _build_status_bar(self) -> None:
         status = self.statusBar()

@@ -4,6 +4,12 @@
     night_plan_keeping(targets, site, night, saved)   -> (core.plan.Plan, kept: bool)
     now_state(targets, site, when="now", selected=None, night_date=None) -> NowState
     tonight_date(site, when="now")                    -> 'YYYY-MM-DD'
+    calendar_of_nights(targets, site, start, nights, darkness, min_altitude)
+                                                      -> core.night_calendar.NightCalendar
+
+The night's plan is made as `epochpoint plan` makes it: event ephemerides and time
+constraints from the list's columns (timing_inputs) give fixed-time event blocks and cut
+windows.
 
 The window shows one instant (the "shown instant"): `when` is "now", an ISO 8601 instant, or
 "auto", which is the present while the night of `night_date` holds it and the middle of that
