@@ -163,8 +163,6 @@ def test_chart_lines_follow_the_bodies_altitudes_within_a_tenth_of_a_degree(body
             t = plan.t_ref + seconds_at(plan, x[k]) * u.s
             ref = _reference_alt_deg(body, t)
             assert abs(alt[k] - ref) < 0.1, (body, t.isot, alt[k], ref)
-    # The Moon's line moves unlike a star's: its altitude curve is not a fixed-RA one (it
-    # transits about 50 minutes later each day, so its peak is not the sidereal peak).
 
 
 def test_sky_dome_draws_each_body_path(body_window, qtbot):

@@ -15,6 +15,7 @@ from PySide6.QtWidgets import (QHBoxLayout, QLabel, QPushButton, QSpinBox, QVBox
                                QWidget)
 
 from ...charts.calendar_chart import clock_hours, draw_calendar
+from ...charts.chart_style import resolve_style
 from .. import workers
 from ..date_field import DateField
 from ..recompute import calendar_of_nights, tonight_date
@@ -175,7 +176,10 @@ class CalendarPanel(QWidget):
         self._draw()
 
     def _draw(self) -> None:
-        if self.calendar is None:
+        if self.calendar is None:  # an empty figure in the theme's colours until computed
+            self.canvas.figure.clear()
+            self.canvas.figure.set_facecolor(resolve_style(self.canvas.style)["background"])
+            self.canvas.draw_idle()
             return
         self.drawing = draw_calendar(self.canvas.figure, self.calendar, self.canvas.style,
                                      self.selected)
