@@ -15,7 +15,6 @@ from PySide6.QtWidgets import (QHBoxLayout, QLabel, QPushButton, QSpinBox, QVBox
                                QWidget)
 
 from ...charts.calendar_chart import clock_hours, draw_calendar
-from ...charts.chart_style import resolve_style
 from .. import workers
 from ..date_field import DateField
 from ..recompute import calendar_of_nights, tonight_date
@@ -177,9 +176,7 @@ class CalendarPanel(QWidget):
 
     def _draw(self) -> None:
         if self.calendar is None:  # an empty figure in the theme's colours until computed
-            self.canvas.figure.clear()
-            self.canvas.figure.set_facecolor(resolve_style(self.canvas.style)["background"])
-            self.canvas.draw_idle()
+            self.canvas.draw_blank()
             return
         self.drawing = draw_calendar(self.canvas.figure, self.calendar, self.canvas.style,
                                      self.selected)

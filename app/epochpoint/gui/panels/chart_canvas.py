@@ -23,6 +23,14 @@ class ChartCanvas(FigureCanvasQTAgg):
         self.setMinimumHeight(min_height_px)
         self.style = None
 
+    def draw_blank(self) -> None:
+        """An empty figure in the current theme's background, shown until there is a chart."""
+        from ...charts.chart_style import resolve_style
+
+        self.figure.clear()
+        self.figure.set_facecolor(resolve_style(self.style)["background"])
+        self.draw_idle()
+
     def display_xy(self, ax, x, y) -> np.ndarray:
         """(n, 2) display pixels of data points (x, y) of `ax`."""
         return ax.transData.transform(np.column_stack((np.ravel(x), np.ravel(y))))

@@ -195,7 +195,8 @@ class PointingPanel(QWidget):
 
     def _draw(self) -> None:
         f = self.fitted
-        if f is None:
+        if f is None:  # an empty figure in the theme's colours until a fit
+            self.canvas.draw_blank()
             return
         self.axes = draw_pointing_charts(self.canvas.figure, f.mount_type, f.first, f.second,
                                          f.ha, f.dec, f.alt, f.az, f.fit.before_arcsec,
