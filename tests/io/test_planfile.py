@@ -172,3 +172,30 @@ def test_write_is_atomic_and_keeps_the_old_file_on_failure(tmp_path, monkeypatch
         write_plan_file(path, _doc())
     assert path.read_bytes() == before
     assert [p.name for p in tmp_path.iterdir()] == ["plan.json"]  # no temporary file left
+
+
+def test_event_and_time_constraint_cells_survive_a_save_and_reopen(tmp_path):
+    """A plan keeps its targets' periodic-event ephemerides and time constraints (the values
+    are invented; the columns are those of a target file, README "Timed events")."""
+    data = _base()
+    data["targets"][0].update(event_epoch=2461200.31234, event_period=3.524749,
+                              event_duration=3.1, event_kind="transit",
+                              not_before="2027-01-20T01:00:00Z", phase_min=0.9, phase_max=0.1)
+    path = _write(tmp_path, data)
+    doc = read_plan_file(path)
+    again = tmp_path / "again.json"
+    write_plan_file(again, doc)
+    kept = json.loads(again.read_text())["targets"][0]
+    for key in ("event_epoch", "event_period", "event_duration", "event_kind", "not_before",
+                "phase_min", "phase_max"):
+        assert kept[key] == data["targets"][0][key], key
+
+
+def test_a_bad_event_cell_in_a_plan_is_one_line_naming_the_target(tmp_path):
+    data = _base()
+    data["targets"][1].update(event_epoch=2461200.3, event_period=-2.0, event_duration=1.0)
+    path = _write(tmp_path, data)
+    with pytest.raises(InputError) as info:
+        read_plan_file(path)
+    message = str(info.value)
+    assert "\n" not in message and "target 2 (Beta)" in message and "event_period" in message

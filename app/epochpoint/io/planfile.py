@@ -65,9 +65,11 @@ from epochpoint.core.targets import (CORRELATION_COLUMNS, ERROR_COLUMNS, MOTION_
 
 from .atomic import atomic_write_text
 from .errors import InputError, quote
+from .eventfields import EVENT_FIELDS, EVENT_PARSERS
 from .filebytes import decode_utf8, read_file_bytes
 from .planningfields import PLANNING_FIELDS, planning_columns
 from .sitefile import site_from_tables, site_to_tables
+from .timeconstraintfields import TIME_FIELDS, check_time_cells
 
 FORMAT_NAME = "epochpoint-plan"
 FORMAT_VERSION = 1
@@ -78,8 +80,11 @@ TOP_KEYS = ("format", "version", "description", "site", "night", "drift", "targe
 NIGHT_KEYS = ("date", "darkness", "min_altitude", "max_airmass", "moon_separation",
               "moon_scaled")
 ASTROMETRY_KEYS = ("ra", "dec", "epoch") + MOTION_COLUMNS
+# Cells kept as the list's own text or numbers: solar-system bodies, periodic events and
+# time constraints (checked on reading as in a target file).
+CELL_KEYS = BODY_KEYS + EVENT_FIELDS + TIME_FIELDS
 TARGET_KEYS = (("name",) + ASTROMETRY_KEYS + ERROR_COLUMNS + CORRELATION_COLUMNS
-               + PLANNING_FIELDS + BODY_KEYS)
+               + PLANNING_FIELDS + CELL_KEYS)
 SCHEDULE_KEYS = ("name", "start", "end")
 
 
@@ -269,7 +274,7 @@ def _targets(path, items) -> Targets:
                 if key == "notes" and not isinstance(value, (str, type(None))):
                     raise fail(key, "must be text")
                 raw_planning[key][i] = value
-            elif key in BODY_KEYS:
+            elif key in CELL_KEYS:
                 if not (_is_number(value) or isinstance(value, str)):
                     raise fail(key, f"{quote(value)} must be text or a number")
                 body_cells.setdefault(key, np.full(n, "", dtype=object))[i] = value
@@ -292,6 +297,7 @@ def _targets(path, items) -> Targets:
                          target=None if i is None else names[i], row_word="target") from None
     if body_cells:
         _check_bodies(path, body_cells, names)
+        _check_timing(path, body_cells, names)
     return replace(targets, extra={**planning_columns(targets, path), **body_cells})
 
 
@@ -305,6 +311,23 @@ def _check_bodies(path, cells: dict, names) -> None:
         except BodyRowError as err:
             raise InputError(path, str(err).split(": ", 1)[-1], line=i + 1, column=err.column,
                              target=names[i], row_word="target") from None
+
+
+def _check_timing(path, cells: dict, names) -> None:
+    """Event and time-constraint cells by the target files' rules (eventfields.py,
+    timeconstraintfields.py), one line naming the target if bad."""
+    def note(i, key, message):
+        raise InputError(path, message, line=i + 1, column=key, target=names[i],
+                         row_word="target")
+
+    for key in EVENT_FIELDS:
+        if key in cells and key != "event_kind":
+            for i, cell in enumerate(cells[key]):
+                try:
+                    EVENT_PARSERS[key](cell)
+                except ValueError as err:
+                    note(i, key, str(err))
+    check_time_cells(cells, note)
 
 
 def _schedule(path, items) -> list[dict]:
@@ -351,10 +374,11 @@ def plan_to_json(doc: PlanDocument) -> dict:
 
 
 def _body_items(targets: Targets, i: int) -> dict:
-    """The non-blank body cells of row i (text as text, numbers as numbers)."""
+    """The non-blank body, event and time-constraint cells of row i (text as text, numbers as
+    numbers)."""
     out = {}
     extra = {str(k).strip().lower(): v for k, v in targets.extra.items()}
-    for key in BODY_KEYS:
+    for key in CELL_KEYS:
         value = extra[key][i] if key in extra else None
         if isinstance(value, (np.floating, np.integer)):
             value = value.item()
