@@ -81,7 +81,7 @@ def load_tables() -> dict:
     tables = read_cache(path, key)
     if tables is None:
         tables = parse_tables()
-        _save(path, key, tables)
+        save_npz_cache(path, key, tables, CACHE_PREFIX)
     return tables
 
 
@@ -117,8 +117,9 @@ def parse_tables() -> dict:
     }
 
 
-def _save(path: Path, key: str, tables: dict) -> None:
-    """Write the cache atomically; a folder that cannot be written is not an error."""
+def save_npz_cache(path: Path, key: str, tables: dict, prefix: str) -> None:
+    """Write a cache of named arrays (with its key) atomically, then remove older caches of the
+    same prefix in its folder; a folder that cannot be written is not an error."""
     from ..io.atomic import atomic_write_bytes
 
     buffer = io.BytesIO()
@@ -127,6 +128,6 @@ def _save(path: Path, key: str, tables: dict) -> None:
         path.parent.mkdir(parents=True, exist_ok=True)
         atomic_write_bytes(path, buffer.getvalue())
         # Caches of older tables are never read again.
-        for old in path.parent.glob(f"{CACHE_PREFIX}*.npz"):
+        for old in path.parent.glob(f"{prefix}*.npz"):
             if old != path:
                 old.unlink(missing_ok=True)

@@ -22,9 +22,7 @@ target list (io/targetchecks.py); their errors are kept.
 """
 from __future__ import annotations
 
-import contextlib
 import hashlib
-import io
 import os
 import re
 from functools import lru_cache
@@ -103,27 +101,14 @@ def _read_cache(path: Path, key: str) -> dict | None:
         return None
 
 
-def _save_cache(path: Path, key: str, columns: dict) -> None:
-    """Write the cache atomically; a folder that cannot be written is not an error."""
-    from epochpoint.io.atomic import atomic_write_bytes
-
-    buffer = io.BytesIO()
-    np.savez(buffer, key=np.asarray(key), **columns)
-    with contextlib.suppress(OSError, ValueError):
-        path.parent.mkdir(parents=True, exist_ok=True)
-        atomic_write_bytes(path, buffer.getvalue())
-        for old in path.parent.glob(f"{CACHE_PREFIX}*.npz"):
-            if old != path:
-                old.unlink(missing_ok=True)
-
-
 @lru_cache(maxsize=1)
 def _columns_for(path_text: str, key: str) -> dict:
     path = _cache_path(key)
     columns = _read_cache(path, key)
     if columns is None:
         columns = parse_catalogue(path_text)
-        _save_cache(path, key, columns)
+        from epochpoint.core.iers_cache import save_npz_cache
+        save_npz_cache(path, key, columns, CACHE_PREFIX)
     for values in columns.values():
         values.setflags(write=False)
     return columns
