@@ -143,6 +143,19 @@ class PositionChunks:
             _add_body_rows(out, part, self.context)
         return out
 
+    def fill(self, out: dict, rows: slice) -> None:
+        """Every column but the name and the bodies' for the targets in `rows`, written into
+        those rows of the whole columns `out`."""
+        if self.use_kernel:
+            for c, values in kernels.chain_columns(self.targets[rows], self.context).items():
+                out[c][rows] = values
+        else:
+            _fill_chunk(self.targets, self.context, out, rows, ledger=self.ledger)
+        if self.targets.has_errors:
+            part = self.targets[rows]
+            for c, values in error_ellipse_at(part, self.context.epoch_jyear).items():
+                out[c][rows] = values
+
     def __iter__(self):
         spans = self.spans()
         if len(spans) == 1:
@@ -185,11 +198,14 @@ def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False
         if chunks.has_bodies:
             _add_body_rows(out, targets, chunks.context)
     else:
+        # Each chunk computed straight into its rows of the whole columns, on a few threads
+        # (no per-chunk copies, and the names stay lazy).
         out.update({c: np.empty(n, dtype=bool if c == "error_lower_bound" else float)
                     for c in chunks.names[1:]})
-        for rows, part in zip(chunks.spans(), chunks):
-            for c in chunks.names[1:]:
-                out[c][rows] = part[c]
+        with ThreadPoolExecutor(max_workers=WORKERS) as pool:
+            list(pool.map(lambda rows: chunks.fill(out, rows), chunks.spans()))
+        if chunks.has_bodies:
+            _add_body_rows(out, targets, chunks.context)
     result = Positions(out, chunks.context)
     result.meta.update(chunks.meta)
     result.units.update(chunks.units)
