@@ -140,7 +140,7 @@ class ElementsDialog(QDialog):
         return True
 
 
-def _append(window, targets: Targets, what: str) -> None:
+def append_targets(window, targets: Targets, what: str) -> None:
     """Append the rows (undoable) and select the first of them."""
     first = window.document.row_count()
     window.document.import_targets(targets)
@@ -151,7 +151,7 @@ def _append(window, targets: Targets, what: str) -> None:
 
 def add_body(window, body: str) -> None:
     """Append a major body (the Sun's row also brings the solar caution, main window)."""
-    _append(window, major_body_targets(body), dict(BODY_CHOICES)[body])
+    append_targets(window, major_body_targets(body), dict(BODY_CHOICES)[body])
 
 
 def add_body_dialog(window) -> None:
@@ -168,4 +168,4 @@ def elements_dialog(window) -> None:
 
 def add_elements(window, targets: Targets) -> None:
     names = list(targets.names())
-    _append(window, targets, names[0] if len(names) == 1 else f"{len(names)} minor bodies")
+    append_targets(window, targets, names[0] if len(names) == 1 else f"{len(names)} minor bodies")

@@ -10,7 +10,7 @@ from __future__ import annotations
 from PySide6.QtWidgets import (QDialog, QDialogButtonBox, QFormLayout, QLabel, QLineEdit,
                                QVBoxLayout)
 
-from .body_dialogs import _append
+from .body_dialogs import append_targets
 
 
 def hipparcos_target(text: str):
@@ -62,4 +62,4 @@ class AddStarDialog(QDialog):
 def add_star_dialog(window) -> None:
     dialog = AddStarDialog(window)
     if dialog.exec() == QDialog.DialogCode.Accepted and dialog.targets is not None:
-        _append(window, dialog.targets, str(dialog.targets.names()[0]))
+        append_targets(window, dialog.targets, str(dialog.targets.names()[0]))

@@ -25,6 +25,7 @@ from epochpoint.core.targets import Targets
 from epochpoint.core.timescale import FIRST_YEAR, LAST_YEAR
 
 from .errors import InputError, quote
+from .planningfields import blank_cell, cell_number
 
 DEFAULT_BASELINE_MIN = 30.0
 DEFAULT_KIND = "event"
@@ -36,26 +37,8 @@ MAX_BASELINE_MIN = 720.0
 REQUIRED = ("event_epoch", "event_period", "event_duration")
 
 
-def _blank(value) -> bool:
-    if value is None:
-        return True
-    if isinstance(value, float) and math.isnan(value):
-        return True
-    return isinstance(value, str) and value.strip() in ("", "--", "nan")
-
-
-def _number(value) -> float:
-    try:
-        number = float(str(value).strip()) if isinstance(value, str) else float(value)
-    except (TypeError, ValueError):
-        raise ValueError(f"{quote(value)} is not a number") from None
-    if not math.isfinite(number):
-        raise ValueError(f"{quote(value)} is not a finite number")
-    return number
-
-
 def _within(value, low: float, high: float, what: str, low_open=False) -> float:
-    number = _number(value)
+    number = cell_number(value)
     if number < low or number > high or (low_open and number == low):
         raise ValueError(f"{quote(value)} must be {what}")
     return number
@@ -63,9 +46,9 @@ def _within(value, low: float, high: float, what: str, low_open=False) -> float:
 
 def parse_epoch(value) -> float:
     """A full Julian date between the years 1800 and 2200; blank is NaN (no event)."""
-    if _blank(value):
+    if blank_cell(value):
         return math.nan
-    number = _number(value)
+    number = cell_number(value)
     if not _FIRST_JD <= number <= _LAST_JD:
         hint = " (a full Julian date: add 2400000 or 2450000 to a reduced one)" \
             if 0.0 <= number < 200000.0 else ""
@@ -76,7 +59,7 @@ def parse_epoch(value) -> float:
 
 def parse_time_scale(value) -> str:
     """bjd_tdb, hjd_utc or jd_utc (case ignored); blank is bjd_tdb."""
-    if _blank(value):
+    if blank_cell(value):
         return "bjd_tdb"
     text = str(value).strip().lower()
     if text not in TIME_SCALES:
@@ -86,7 +69,7 @@ def parse_time_scale(value) -> str:
 
 def parse_period(value) -> float:
     """Days, > 0; blank is NaN."""
-    if _blank(value):
+    if blank_cell(value):
         return math.nan
     return _within(value, 0.0, MAX_PERIOD_D, f"a period in days, > 0 and up to {MAX_PERIOD_D:g}",
                    low_open=True)
@@ -94,7 +77,7 @@ def parse_period(value) -> float:
 
 def parse_duration(value) -> float:
     """Hours, > 0; blank is NaN."""
-    if _blank(value):
+    if blank_cell(value):
         return math.nan
     return _within(value, 0.0, MAX_DURATION_H, f"hours, > 0 and up to {MAX_DURATION_H:g}",
                    low_open=True)
@@ -102,21 +85,21 @@ def parse_duration(value) -> float:
 
 def parse_error(value) -> float:
     """A 1-sigma error in days, >= 0; blank is NaN (unknown)."""
-    if _blank(value):
+    if blank_cell(value):
         return math.nan
     return _within(value, 0.0, 100.0, "an error in days, from 0 to 100")
 
 
 def parse_baseline(value) -> float:
     """Minutes before and after, 0 .. 720; blank is the default 30."""
-    if _blank(value):
+    if blank_cell(value):
         return DEFAULT_BASELINE_MIN
     return _within(value, 0.0, MAX_BASELINE_MIN, f"minutes from 0 to {MAX_BASELINE_MIN:g}")
 
 
 def parse_kind(value) -> str:
     """Free text on one line; blank is 'event'."""
-    if _blank(value):
+    if blank_cell(value):
         return DEFAULT_KIND
     return " ".join(str(value).split())
 

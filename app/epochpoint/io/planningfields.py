@@ -30,7 +30,8 @@ EXPOSURE_MAX_S = 86400.0
 REPEATS_MAX = 10000
 
 
-def _blank(value) -> bool:
+def blank_cell(value) -> bool:
+    """True for an empty cell: None, NaN, or text '', '--' or 'nan'."""
     if value is None:
         return True
     if isinstance(value, float) and math.isnan(value):
@@ -38,7 +39,8 @@ def _blank(value) -> bool:
     return isinstance(value, str) and value.strip() in ("", "--", "nan")
 
 
-def _number(value) -> float:
+def cell_number(value) -> float:
+    """A cell as a finite float, or ValueError naming it."""
     if isinstance(value, bool):
         raise ValueError(f"{quote(value)} is not a number")
     try:
@@ -51,7 +53,7 @@ def _number(value) -> float:
 
 
 def _whole(value, low: int, high: int, what: str) -> int:
-    number = _number(value)
+    number = cell_number(value)
     if number != round(number) or not low <= number <= high:
         raise ValueError(f"{quote(value)} must be {what}")
     return int(number)
@@ -59,7 +61,7 @@ def _whole(value, low: int, high: int, what: str) -> int:
 
 def parse_priority(value) -> int:
     """Priority 1 (highest) .. 5 (lowest); blank gives the default. ValueError if bad."""
-    if _blank(value):
+    if blank_cell(value):
         return DEFAULT_PRIORITY
     low, high = PRIORITY_RANGE
     return _whole(value, low, high, f"a whole number from {low} (highest) to {high} (lowest)")
@@ -67,9 +69,9 @@ def parse_priority(value) -> int:
 
 def parse_exposure(value) -> float:
     """Exposure in seconds, 0 .. one day; blank gives the default. ValueError if bad."""
-    if _blank(value):
+    if blank_cell(value):
         return DEFAULT_EXPOSURE_S
-    seconds = _number(value)
+    seconds = cell_number(value)
     if not 0.0 <= seconds <= EXPOSURE_MAX_S:
         raise ValueError(f"{quote(value)} must be from 0 to {EXPOSURE_MAX_S:g} seconds")
     return seconds
@@ -77,14 +79,14 @@ def parse_exposure(value) -> float:
 
 def parse_repeats(value) -> int:
     """Exposures per block, a whole number >= 1; blank gives the default. ValueError if bad."""
-    if _blank(value):
+    if blank_cell(value):
         return DEFAULT_REPEATS
     return _whole(value, 1, REPEATS_MAX, f"a whole number from 1 to {REPEATS_MAX}")
 
 
 def parse_notes(value) -> str:
     """Notes as one line of text (line breaks become spaces); blank is empty."""
-    if _blank(value):
+    if blank_cell(value):
         return ""
     return " ".join(str(value).split())
 

@@ -28,7 +28,8 @@ from epochpoint.core.time_constraints import TimeConstraints
 from epochpoint.core.timescale import TimeInputError, check_year, parse_time, quiet_erfa
 
 from .errors import InputError, quote
-from .eventfields import _blank, _within
+from .eventfields import _within
+from .planningfields import blank_cell
 
 TIME_FIELDS = ("not_before", "not_after", "phase_min", "phase_max")
 
@@ -37,7 +38,7 @@ def parse_instant(value) -> str | None:
     """A UTC instant from ISO 8601 text (Z or an offset; no offset means UTC) as fixed-width
     UTC text 'YYYY-MM-DDTHH:MM:SS.ffffff' (which sorts in time order); blank is None. 'now'
     is refused: a file's constraint must not change with the day it is read."""
-    if _blank(value):
+    if blank_cell(value):
         return None
     text = str(value).strip()
     if text.lower() == "now":
@@ -62,7 +63,7 @@ def parse_instant(value) -> str | None:
 
 def parse_phase(value) -> float:
     """A phase, a fraction of the period from 0 to 1; blank is NaN (no window)."""
-    if _blank(value):
+    if blank_cell(value):
         return math.nan
     return _within(value, 0.0, 1.0, "a phase from 0 to 1 (a fraction of the period)")
 
@@ -116,7 +117,7 @@ def check_time_cells(extra: dict, note) -> None:
                 bad = True
         if bad:
             continue
-        cells["ephemeris"] = all(field in labels and not _blank(extra[labels[field]][i])
+        cells["ephemeris"] = all(field in labels and not blank_cell(extra[labels[field]][i])
                                  for field in ("event_epoch", "event_period"))
         problem = _row_problem(cells)
         if problem is not None:
