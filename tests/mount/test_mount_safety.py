@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import re
 import threading
+import time
 from datetime import datetime, timedelta, timezone
 
 import pytest
@@ -175,6 +176,10 @@ def test_a_latin1_byte_keeps_the_connection_and_the_abort(peers):
         state = scope.abort()
         assert any("\ufffd" in m for m in scope.client.messages())
         assert any("not UTF-8" in m for m in scope.client.messages())
+    # The peer reads on its own thread: give it a moment to take the abort off the socket.
+    deadline = time.monotonic() + 5.0
+    while peer.aborts() == 0 and time.monotonic() < deadline:
+        time.sleep(0.02)
     assert peer.aborts() == 1 and state == "Idle"
 
 
