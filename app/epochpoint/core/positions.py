@@ -105,6 +105,8 @@ class PositionChunks:
         self.units = {k: v for k, v in COLUMN_UNITS.items() if k in self.names}
         # Solar-system rows (core/bodies/) add their columns; DE421 is read only for them.
         self.has_bodies, self.body_warnings = _has_body_columns(targets), []
+        # How many targets have no known distance, when a computed column already tells.
+        self.distances_unknown = None
         if self.has_bodies:
             from .bodies.columns import BODY_COLUMNS_OUT, BODY_UNITS, body_warnings
             self.names += list(BODY_COLUMNS_OUT)
@@ -118,7 +120,9 @@ class PositionChunks:
         """The context's meta, made when first read (a site's zone may have to be found)."""
         meta = _context_meta(self.context)
         # Targets without a known distance get no annual parallax (ledger_parallax NaN).
-        meta["targets_distance_unknown"] = int(np.count_nonzero(self.targets.distance_unknown))
+        meta["targets_distance_unknown"] = (
+            self.distances_unknown if self.distances_unknown is not None
+            else int(np.count_nonzero(self.targets.distance_unknown)))
         if self.body_warnings:
             meta["body_warnings"] = list(self.body_warnings)
         return meta
@@ -195,6 +199,8 @@ def positions(targets: Targets, site: Site | None, when, *, ledger: bool = False
     if chunks.use_kernel and not targets.has_errors:
         # The compiled chain in one parallel pass over all targets, straight into the columns.
         out.update(kernels.chain_columns(targets, chunks.context))
+        # The chain's propagated parallax is 0 exactly where no distance is known.
+        chunks.distances_unknown = int(np.count_nonzero(out["parallax_propagated"] == 0.0))
         if chunks.has_bodies:
             _add_body_rows(out, targets, chunks.context)
     else:
