@@ -112,7 +112,7 @@ def _pointing():
     return SimpleNamespace(name="Wick", time="2027-01-20T04:40:00.000Z", alt_deg=52.1,
                            az_deg=210.4, sun_separation_deg=120.0, ra_apparent_deg=38.9,
                            dec_apparent_deg=-41.2, ra_j2000_deg=38.7, dec_j2000_deg=-41.3,
-                           command_eod_deg=None)
+                           command_eod_deg=None, is_sun=False)
 
 
 def test_sync_confirmation_never_speaks_of_motion_and_a_slew_says_the_caution_once():

@@ -151,3 +151,120 @@ def test_a_slew_with_a_model_states_both_places_and_sends_the_corrected_one(
     first = {one.get("name"): float(one.text) for one in sent[0]}
     assert first["RA"] * 15.0 == pytest.approx(ra_sent, abs=1e-6)
     assert first["DEC"] == pytest.approx(dec_sent, abs=1e-6)
+
+
+# -- A German mount: the pier side in the confirmation, the report and the samples ----------
+# References: a German equatorial mount takes the pier side of the target's hour angle at the
+# slew's end (east of the meridian: the east side) and may track past the meridian only up to
+# its meridian limit (common practice); INDI's TELESCOPE_PIER_SIDE names the side the tube is
+# on, PIER_WEST "West (pointing east)" (the INDI telescope simulator's label), so our east
+# side is INDI's PIER_WEST. The sky turns at 15.041 arcsec per second (common practice).
+
+def german(site, meridian_limit: float = 5.0):
+    from dataclasses import replace
+
+    from epochpoint.core.limits import Interlocks, MountLimits
+
+    mount = MountLimits(mount_type="german", meridian_limit=meridian_limit,
+                        min_altitude=site.interlocks.mount.min_altitude, slew_rate=3.0,
+                        settle=site.interlocks.mount.settle)
+    return replace(site, interlocks=Interlocks(mount=mount))
+
+
+def pier_peer(on: str | None) -> ScriptedPeer:
+    """A scripted mount that reports TELESCOPE_PIER_SIDE with switch `on` (or none)."""
+    from scripted_peer import DEVICE, definitions
+
+    switches = "".join(f'<defSwitch name="{n}">{"On" if n == on else "Off"}</defSwitch>'
+                       for n in ("PIER_WEST", "PIER_EAST"))
+    return ScriptedPeer(definitions() + f"""
+<defSwitchVector device="{DEVICE}" name="TELESCOPE_PIER_SIDE" state="Ok" perm="ro"
+  rule="AtMostOne">{switches}</defSwitchVector>
+""")
+
+
+@pytest.mark.parametrize("reported, recorded", [("PIER_WEST", "east"), ("PIER_EAST", "west"),
+                                                (None, "east")])
+def test_a_german_mount_shows_its_pier_side_and_records_it(qtbot, panel, site, confirmations,
+                                                           tmp_path, reported, recorded):
+    site = german(site)
+    panel.set_site(site)
+    # 55 deg high in the east-south-east: hours east of the meridian, the east side.
+    targets, _, _ = star_at(site, 55.0, 120.0, name="Cal")
+    peer = pier_peer(reported)
+    path = tmp_path / "samples.csv"
+    row = panel.pointing_row
+    try:
+        connect_and_slew(qtbot, panel, peer, targets)
+        assert panel.last_report.final_state == "Ok"
+        report = panel.report_label.text()
+        qtbot.waitUntil(row.record_button.isEnabled, timeout=WAIT_MS)
+        row.samples_edit.setText(str(path))
+        qtbot.mouseClick(row.record_button, Qt.MouseButton.LeftButton)
+        qtbot.waitUntil(lambda: panel.busy_job is None and path.exists(), timeout=WAIT_MS)
+    finally:
+        panel.shutdown()
+        peer.close()
+    text = confirmations[0]
+    assert "Pier side: east (INDI PIER_WEST: the tube west of the pier, pointing east) for " \
+           "Cal now" in text
+    assert (f"the device reports {reported} now, before the slew" if reported
+            else "the device reports no pier side") in text
+    if reported == "PIER_WEST":
+        assert "the device reports PIER_WEST, the same side." in report
+    elif reported == "PIER_EAST":
+        assert "Caution: the device reports PIER_EAST, not our east side" in report
+    else:
+        assert "the device reports none" in report
+    # The device's side wins in the sample; without one, the side our check found.
+    with open(path, newline="") as handle:
+        rows = list(csv.DictReader(handle))
+    assert [r["pier_side"] for r in rows] == [recorded]
+    assert f"{recorded} pier side" in panel.log_view.toPlainText()
+
+
+def test_a_flip_needed_mid_track_is_refused_in_the_app_and_nothing_is_sent(
+        qtbot, panel, site, confirmations):
+    from astropy import units as u
+    from astropy.coordinates import ICRS, TETE, SkyCoord
+    from astropy.time import Time
+
+    from epochpoint.core.targets import Targets
+
+    # Meridian limit 0.5 deg; a star 1 deg east of the meridian (astropy's apparent sidereal
+    # time and TETE) reaches it within 1.5 deg / 15.041"/s = 6 min, inside the app's 10 min
+    # track, even after a slew of the longest the site allows (10 s + 180 deg at 3 deg/s).
+    site = german(site, meridian_limit=0.5)
+    panel.set_site(site)
+    now = Time.now()
+    last = now.sidereal_time("apparent", longitude=site.longitude * u.deg).deg
+    dec = site.latitude + 30.0  # 60 deg high on the meridian
+    icrs = SkyCoord(ra=(last + 1.0) % 360.0 * u.deg, dec=dec * u.deg,
+                    frame=TETE(obstime=now)).transform_to(ICRS())
+    targets = Targets.from_columns(ra=[icrs.ra.deg], dec=[icrs.dec.deg], name=["Near"],
+                                   epoch=2016.0)
+    peer = ScriptedPeer()
+    try:
+        panel.address_edit.setText(peer.address)
+        qtbot.mouseClick(panel.connect_button, Qt.MouseButton.LeftButton)
+        qtbot.waitUntil(lambda: panel.is_connected, timeout=WAIT_MS)
+        panel.set_targets(targets)
+        panel.set_selected(0)
+        qtbot.waitUntil(lambda: panel.pointing is not None and panel.slew_button.isEnabled(),
+                        timeout=WAIT_MS)
+        qtbot.mouseClick(panel.slew_button, Qt.MouseButton.LeftButton)
+        qtbot.waitUntil(lambda: panel.report_label.text().startswith("Not completed"),
+                        timeout=WAIT_MS)
+        sent = peer.coordinates_sent()
+    finally:
+        panel.shutdown()
+        peer.close()
+    shown = panel.report_label.text()
+    assert "would cross the meridian limit (0.5 deg past the meridian) on the east pier side" \
+        in shown and "flip needed" in shown and "nothing was sent" in shown
+    minutes = float(re.search(r"side ([\d.]+) min into the 10 min track", shown).group(1))
+    # From 1 deg east at the build, less what the sky turned until the slew's end (at most the
+    # longest slew and a minute of test), to +0.5 deg (hand computed).
+    rate = 15.041 / 3600.0
+    assert (1.5 - rate * (70.0 + 60.0)) / rate / 60.0 <= minutes <= 1.5 / rate / 60.0 + 0.05
+    assert sent == []

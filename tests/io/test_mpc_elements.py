@@ -108,3 +108,58 @@ def test_elements_option_adds_bodies_to_positions(tmp_path, capsys):
     assert [r["name"] for r in rows] == ["Vega", "(99942) Invented Rock", "321P/Invented"]
     assert rows[0]["distance_au"] is None
     assert all(r["distance_au"] > 0 and r["rate_ra"] is not None for r in rows[1:])
+
+
+BAD_LINES = [(ASTEROID[:26] + "12x.45678" + ASTEROID[35:], "27-35", "mean anomaly"),
+             (ASTEROID[:70] + "1.2345678" + ASTEROID[79:], "93-103", "ellipse")]
+
+
+def test_skip_bad_rows_reports_each_bad_line_and_keeps_the_others(tmp_path):
+    """With skip_bad_rows a bad field and an orbit no engine rule allows are each reported
+    (file, line, columns) and left out; the good lines are read as without them."""
+    text = (PREAMBLE + BAD_LINES[0][0] + "\n" + ASTEROID + "\n" + BAD_LINES[1][0] + "\n"
+            + COMET + "\n")
+    skipped = []
+    targets = parse_mpc_elements("e.txt", text, skip_bad_rows=True, on_skip=skipped.append)
+    assert list(targets.names()) == ["(99942) Invented Rock", "321P/Invented"]
+    alone = parse_mpc_elements("e.txt", ASTEROID + "\n" + COMET + "\n")
+    for column in alone.extra:
+        np.testing.assert_array_equal(targets.extra[column], alone.extra[column])
+    assert [(e.line, e.column) for e in skipped] == [(5, "27-35"), (7, "93-103")]
+    for err, (_, _, fragment) in zip(skipped, BAD_LINES):
+        assert fragment in str(err) and str(err).startswith(f"e.txt, line {err.line}")
+    # Without the option the first bad line stops the reading, as before.
+    with pytest.raises(InputError) as info:
+        parse_mpc_elements("e.txt", text)
+    assert info.value.line == 5
+    # read_targets passes the option on for an elements file.
+    path = tmp_path / "orbits.dat"
+    path.write_text(text)
+    skipped.clear()
+    assert len(read_targets(path, skip_bad_rows=True, on_skip=skipped.append)) == 2
+    assert len(skipped) == 2
+    # Every line bad: nothing usable is still an error.
+    with pytest.raises(InputError, match="all 2 lines have errors"):
+        parse_mpc_elements("e.txt", BAD_LINES[0][0] + "\n" + BAD_LINES[1][0] + "\n",
+                           skip_bad_rows=True, on_skip=skipped.append)
+
+
+def test_skip_bad_rows_applies_to_elements_files_on_the_command_line(tmp_path, capsys):
+    stars = tmp_path / "stars.csv"
+    stars.write_text("name,ra,dec,priority\nVega,279.2347,38.7837,2\n")
+    orbits = tmp_path / "orbits.txt"
+    orbits.write_text(ASTEROID + "\n" + BAD_LINES[0][0] + "\n" + COMET + "\n")
+    argv = ["positions", str(stars), "--elements", str(orbits), "--site=-30.5,-70.7,2200",
+            "--at", "2027-05-01T03:00:00Z", "--format", "json"]
+    code = main(argv)
+    out, err = capsys.readouterr()
+    assert code == 2 and out == ""
+    assert err.strip() == err.strip().splitlines()[0]  # one line
+    assert f"{orbits}, line 2" in err and "27-35" in err and "mean anomaly" in err
+    code = main(argv + ["--skip-bad-rows"])
+    out, err = capsys.readouterr()
+    assert code == 0, err
+    assert [r["name"] for r in json.loads(out)] == ["Vega", "(99942) Invented Rock",
+                                                   "321P/Invented"]
+    skipped = [line for line in err.splitlines() if line.startswith("epochpoint: skipped:")]
+    assert len(skipped) == 1 and f"{orbits}, line 2" in skipped[0] and "27-35" in skipped[0]

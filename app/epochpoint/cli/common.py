@@ -43,6 +43,28 @@ def add_site_arguments(parser, required: bool = True) -> None:
                              "times are labelled only, the night is fixed by the longitude")
 
 
+def add_solar_option(parser, allows: str) -> None:
+    """--solar-filter-fitted: the site's solar option for this run. `allows` completes
+    'so the Sun may be ...' (planned, exported, pointed at)."""
+    parser.add_argument("--solar-filter-fitted", action="store_true",
+                        help=f"declare a full-aperture solar filter fitted on the telescope "
+                             f"and on every finder, so the Sun may be {allows} (as the site "
+                             f"file's [safety] solar_filter_fitted = true); a caution is shown "
+                             f"every time")
+
+
+def with_solar_option(site: Site, args) -> Site:
+    """The site with --solar-filter-fitted applied. With the solar option on (flag or site
+    file) the caution (core.limits.SOLAR_CAUTION) goes to standard error on every run."""
+    if getattr(args, "solar_filter_fitted", False):
+        from dataclasses import replace
+
+        site = replace(site, interlocks=replace(site.interlocks, solar_filter_fitted=True))
+    for caution in site.interlocks.cautions():
+        print(f"epochpoint: {caution}", file=sys.stderr)
+    return site
+
+
 def add_output_arguments(parser, formats) -> None:
     parser.add_argument("--format", choices=formats, default=formats[0],
                         help=f"output format (default {formats[0]})")
@@ -52,7 +74,7 @@ def add_output_arguments(parser, formats) -> None:
 
 def load_targets(args):
     """Read the target file (and the --elements files); with --skip-bad-rows each skipped row
-    is one stderr line."""
+    or elements line is one stderr line."""
     from ..io import read_targets
 
     def report(error):
@@ -66,7 +88,8 @@ def load_targets(args):
     from ..core.targets import concatenate
     from ..io.catalogues.mpc_elements import read_mpc_elements
 
-    return concatenate([targets] + [read_mpc_elements(path) for path in elements])
+    return concatenate([targets] + [read_mpc_elements(path, skip_bad_rows=args.skip_bad_rows,
+                                                      on_skip=report) for path in elements])
 
 
 def load_site(args) -> Site:

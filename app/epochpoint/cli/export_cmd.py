@@ -35,12 +35,13 @@ def add_parser(sub) -> None:
     # The earlier spelling, kept working but no longer shown.
     p.add_argument("--tolerance", type=within, dest="valid_within", default=argparse.SUPPRESS,
                    help=argparse.SUPPRESS)
+    common.add_solar_option(p, "exported")
     common.add_output_arguments(p, list(EXPORT_FORMATS))
 
 
 def run(args) -> int:
     targets = common.load_targets(args)
-    site = common.load_site(args)
+    site = common.with_solar_option(common.load_site(args), args)
     model = None
     if args.model or args.frame == "mount":
         if args.frame != "mount" or not args.model:

@@ -68,6 +68,7 @@ def add_parser(sub) -> None:
                       help="refuse unless the target stays allowed for this long after the "
                            "slew ends (default 10; use the block's length); with --wait, "
                            "then watch the tracking mount for as long")
+    common.add_solar_option(slew, "pointed at")
     slew.add_argument("--at-limit", choices=("stop-tracking", "abort"),
                       default="stop-tracking",
                       help="what the watch does before the tracked mount leaves the allowed "
@@ -133,7 +134,7 @@ def _slew(args) -> int:
 
     targets_path, name = _targets_and_name(args)
     targets = read_targets(targets_path)
-    site = common.load_site(args)
+    site = common.with_solar_option(common.load_site(args), args)
     model = _model(args.model, site) if args.model else None
     # Refuse before touching the server: nothing is sent for a forbidden target.
     checked_pointing(targets, site, name, model=model)

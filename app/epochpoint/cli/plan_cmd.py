@@ -39,10 +39,7 @@ def add_parser(sub) -> None:
                    help="smallest distance from the Moon while it is up (default 0: none)")
     p.add_argument("--moon-scaled", action="store_true",
                    help="scale the Moon distance with the Moon's illuminated fraction")
-    p.add_argument("--solar-filter-fitted", action="store_true",
-                   help="declare a full-aperture solar filter fitted, so the Sun may be "
-                        "planned (as the site file's [safety] solar_filter_fitted = true); "
-                        "a caution is shown every time")
+    common.add_solar_option(p, "planned")
     p.add_argument("--schedule-seconds", type=checks.number(0.0, MAX_SCHEDULE_SECONDS, unit="s"),
                    default=SCHEDULE_SECONDS, metavar="S",
                    help=f"upper limit on the time the scheduler may spend improving the order "
@@ -63,7 +60,7 @@ def add_parser(sub) -> None:
 
 def run(args) -> int:
     targets = common.load_targets(args)
-    site = _with_solar_option(common.load_site(args), args)
+    site = common.with_solar_option(common.load_site(args), args)
     events = _events(targets, args)
     result = plan(targets, site, args.night, darkness=args.darkness,
                   min_altitude=args.min_altitude, max_airmass=args.max_airmass,
@@ -83,19 +80,6 @@ def run(args) -> int:
     else:
         _write(args, _people(result, data))
     return 0
-
-
-def _with_solar_option(site, args):
-    """The site with --solar-filter-fitted applied; with the solar option on (flag or site
-    file) the caution goes to standard error on every run."""
-    from dataclasses import replace
-
-    from ..core.limits import SOLAR_CAUTION
-    if args.solar_filter_fitted:
-        site = replace(site, interlocks=replace(site.interlocks, solar_filter_fitted=True))
-    if site.interlocks.solar_filter_fitted:
-        print(f"epochpoint: {SOLAR_CAUTION}", file=sys.stderr)
-    return site
 
 
 def _events(targets, args):
@@ -155,6 +139,7 @@ def _schedule_csv(result, data) -> str:
     meta = {"site": data["site"], "night": data["date"], "darkness": data["darkness"]}
     meta.update({k: v for k, v in data["night"].items()})
     meta["unscheduled"] = "; ".join(f"{u['name']} ({u['reason']})" for u in data["unscheduled"])
+    meta["cautions"] = " | ".join(data["cautions"])
     return write_result(columns, meta, None, "csv")
 
 
@@ -163,9 +148,7 @@ def _people(result, data) -> str:
     night, moon = data["night"], data["moon"]
     lines = [f"Night of {data['date']} at {data['site']} ({data['darkness']} darkness)",
              common.zone_line(result.site), ""]
-    if result.site.interlocks.solar_filter_fitted:
-        from ..core.limits import SOLAR_CAUTION
-        lines[2:2] = [SOLAR_CAUTION]
+    lines[2:2] = data["cautions"]
     for key in night:
         lines.append(f"  {key.replace('_', ' '):<28} {_local(result, night[key])}")
     lit = moon.get("illumination")

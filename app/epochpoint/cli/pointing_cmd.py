@@ -5,7 +5,9 @@ fit    a pointing model (JSON) from a samples file (core/pointing_model, io/poin
 apply  where the mount's axes must go for sky places: a samples-style file with ha_target and
        dec_target, or any target list with --site --at
 record slew to each calibration star over INDI (interlocked), let the user centre it, and
-       append one sample per star to the samples file (mount.calibration)
+       append one sample per star to the samples file (mount.calibration; io.pointing_samples
+       append_sample keeps the file's other columns): for a German mount with its pier side,
+       for an alt-az mount with the altitude and azimuth columns
 """
 from __future__ import annotations
 
@@ -80,8 +82,8 @@ def _add_record_parser(actions) -> None:
     common.add_site_arguments(record)
     add_server_arguments(record)
     record.add_argument("--samples", required=True, metavar="FILE",
-                        help="samples CSV; new samples are added to the ones already in it "
-                             "(rewritten atomically after each star)")
+                        help="samples CSV; each new sample is appended (atomically) to the "
+                             "ones already in it, whose other columns are kept")
     record.add_argument("--no-prompt", action="store_true",
                         help="record each star once the slew has ended and settled, without "
                              "waiting for Enter (scripts and tests)")
@@ -278,19 +280,14 @@ def _hipparcos_names_only(path):
     return [r[j].strip() for r in rows[1:] if j < len(r)]
 
 
-def _existing_samples(path) -> list[dict]:
-    """The samples already in the file (none when it does not exist)."""
+def _check_samples_file(path) -> None:
+    """A samples file that exists must be readable before the mount moves (InputError)."""
     import os
 
-    from ..io.pointing_samples import SAMPLE_HEADER, read_samples
+    from ..io.pointing_samples import read_samples
 
-    if not os.path.exists(path):
-        return []
-    columns = read_samples(path)
-    times = columns.get("time", [""] * len(columns["line"]))
-    return [{"time": times[k], "name": columns["name"][k],
-             **{c: float(columns[c][k]) for c in SAMPLE_HEADER[2:]}}
-            for k in range(len(columns["line"]))]
+    if os.path.exists(path):
+        read_samples(path)
 
 
 def _centred(name: str) -> bool:
@@ -307,15 +304,14 @@ def _centred(name: str) -> bool:
 
 
 def _record(args, say, open_scope) -> int:
-    from ..core.pointing_model.model import wrap_ha
-    from ..io.pointing_samples import write_samples
-    from ..mount.calibration import record_star
+    from ..io.pointing_samples import append_sample
+    from ..mount.calibration import record_star, sample_offsets_text
     from .mount_cmd import EXIT_REFUSED
     from ..mount.errors import InterlockRefused
 
     targets, names = _record_stars(args.stars)
     site = common.load_site(args)
-    rows = _existing_samples(args.samples)  # a bad file stops here, before the mount moves
+    _check_samples_file(args.samples)  # a bad file stops here, before the mount moves
     recorded, refused = 0, []
     with open_scope(args) as scope:
         if args.push_site:
@@ -335,13 +331,10 @@ def _record(args, say, open_scope) -> int:
                 if sample is None:
                     say(f"{name} not recorded.")
                     continue
-                rows.append(sample)
-                write_samples(args.samples, rows)
+                # Appended: the file's other rows, columns and comments stay as they were.
+                append_sample(args.samples, sample)
                 recorded += 1
-                dha = wrap_ha(sample["ha_mount"] - sample["ha_target"])
-                say(f"Recorded {name}: mount minus star {dha * 3600.0:+.1f} arcsec in hour "
-                    f"angle, {(sample['dec_mount'] - sample['dec_target']) * 3600.0:+.1f} arcsec "
-                    f"in declination.")
+                say(f"Recorded {name}: {sample_offsets_text(sample)}.")
         except KeyboardInterrupt:
             say("Stopped: aborting any motion.")
             scope.abort()

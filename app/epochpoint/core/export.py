@@ -149,14 +149,16 @@ def placed(targets: Targets, site: Site, when):
     return table
 
 
-def mount_columns(result, site: Site, model) -> tuple[ColumnTable, np.ndarray]:
+def mount_columns(result, site: Site, model, is_sun=False) -> tuple[ColumnTable, np.ndarray]:
     """The mount frame of a positions() result (name, ra_mount, dec_mount, ha_mount, degrees)
-    by a pointing model, and why the interlocks refuse each target's axes ('' if allowed)."""
+    by a pointing model, and why the interlocks refuse each target's axes ('' if allowed;
+    is_sun: which targets are the Sun itself, as for `refusals`)."""
     axes = mount_axes(model, result["ha"], result["dec_observed"], result["alt"],
                       result["az"], site.latitude)
     ra, dec = place_of_date(axes.ha, axes.dec, result.context.site.last_rad * RAD_TO_DEG)
     sun_deg = sun_separation_deg(site, result.context.time, ra, dec)
-    why = site.interlocks.violations(axes.alt, axes.az, axes.ha, axes.dec, sun_deg)
+    why = site.interlocks.violations(axes.alt, axes.az, axes.ha, axes.dec, sun_deg,
+                                     is_sun=is_sun)
     table = ColumnTable({"name": result["name"], "ra_mount": ra, "dec_mount": dec,
                          "ha_mount": axes.ha})
     return table, why
@@ -257,10 +259,11 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
         raise ValueError("the mount frame needs a pointing model (--model MODEL.json, from "
                          "epochpoint pointing fit)")
     result = placed(targets, site, when)
-    reasons = refusals(result, site, is_sun=sun_rows(targets))
+    is_sun = sun_rows(targets)
+    reasons = refusals(result, site, is_sun=is_sun)
     table = result
     if frame == "mount":
-        table, axes_reasons = mount_columns(result, site, model)
+        table, axes_reasons = mount_columns(result, site, model, is_sun=is_sun)
         reasons = _both_places(reasons, axes_reasons)
     keep = np.ones(len(targets), bool) if include_all else reasons == ""
     rows = np.flatnonzero(keep)
@@ -295,6 +298,7 @@ def export_positions(targets: Targets, site: Site, when, frame: str, include_all
                                               "timezone", "timezone_source")})
     meta["mount_type"] = MOUNT_TYPE_NAMES[site.interlocks.mount.mount_type]
     meta["interlocks"] = _interlocks_text(site)
+    meta["cautions"] = site.interlocks.cautions()  # the solar caution with the option on
     meta["interlocks_checked"] = (f"at the export instant {time_iso} only, at each target's "
                                   "exported place (the destination, not the path of a slew); "
                                   "check again before pointing at any later time")
@@ -368,7 +372,7 @@ def export_text(table: ColumnTable, format: str) -> str:
     if format == "csv":
         if ephemeris is not None:
             columns = _with_ephemeris_rows(table, ephemeris)
-        return result_csv(columns, {k: "" if v is None else v for k, v in table.meta.items()})
+        return result_csv(columns, {k: _meta_text(v) for k, v in table.meta.items()})
     if format == "json":
         document = {"meta": table.meta, "units": table.units,
                     "targets": json.loads(result_json(columns))}
@@ -379,6 +383,16 @@ def export_text(table: ColumnTable, format: str) -> str:
     if format == "votable":
         return _votable_text(table)
     raise ValueError(f"unknown export format {format!r} (use {', '.join(EXPORT_FORMATS)})")
+
+
+def _meta_text(value):
+    """A meta value for a one-line slot (a CSV comment, a VOTable INFO): None as empty, a
+    list (the cautions) as its items joined by ' | '."""
+    if value is None:
+        return ""
+    if isinstance(value, list):
+        return " | ".join(str(v) for v in value)
+    return value
 
 
 def _with_ephemeris_rows(table: ColumnTable, ephemeris: ColumnTable) -> dict:
@@ -426,7 +440,7 @@ def _votable_text(table: ColumnTable) -> str:
         second.name = second.ID = "ephemeris"
         resource.tables.append(second)
     for key, value in table.meta.items():
-        resource.infos.append(Info(name=key, value="" if value is None else str(value)))
+        resource.infos.append(Info(name=key, value=str(_meta_text(value))))
         if isinstance(value, (int, float)) and not isinstance(value, bool) and \
                 np.isfinite(value):
             datatype = "int" if isinstance(value, int) else "double"

@@ -129,6 +129,7 @@ class Plan:
                 "date": self.night.date.isoformat(), "darkness": self.constraints.darkness,
                 "timezone": self.site.timezone,
                 "timezone_source": self.site.timezone_source,
+                "cautions": self.site.interlocks.cautions(),
                 "night": self.night.to_json(), "moon": self.moon, "targets": targets,
                 "schedule": entries, "unscheduled": unscheduled, "collisions": collisions,
                 "search": {"iterations": int(order.iterations), "seed": int(order.seed),

@@ -1,22 +1,9 @@
-"""Pier sides of a German equatorial mount: its mechanical axis angles and what a flip costs.
+"""A German equatorial mount's pier sides in the schedule: what a flip costs.
 
-The geometry (common practice for German equatorial mounts, worked out from the axes; no
-published source is needed beyond spherical geometry): the polar axis turns the declination
-axis round; the tube is square to the declination axis at one end and the counterweight at
-the other. Call the polar-axis angle theta, 0 with the counterweight straight down; there
-the tube swings along the six-hour circle (hour angle -90 or +90 deg) and through the pole.
-Call the declination-axis angle psi, 90 deg at the pole. For a target at hour angle H (west
-positive) and declination dec, with p = +1 when the polar axis points at the north celestial
-pole and -1 at the south:
-
-    east side (target east of the meridian, H < 0):   theta = H + 90,  psi = p dec
-    west side (target west of the meridian, H >= 0):  theta = H - 90,  psi = 180 - p dec
-
-Both describe the same pointing (turn the polar axis by 180 deg and mirror the declination
-axis through the pole). The polar axis never passes counterweight-up (theta = +-180) and the
-declination axis passes through the pole, so a slew turns the axes by |delta theta| and
-|delta psi|. A flip between two targets at the same place costs 180 deg on the polar axis and
-|180 - 2 p dec| on the declination axis: both axes swing through the pier change.
+The mount's mechanical geometry (sides, axis angles theta and psi) lives in the mount-frame
+stage, core/pointing_model/pier_sides.py, shared with the slew and the interlocks. A slew
+turns the axes by |delta theta| and |delta psi|; a flip between two targets at the same place
+costs 180 deg on the polar axis and |180 - 2 p dec| on the declination axis.
 
 The mount takes a side when it slews to a block: the side of the target's hour angle at the
 block's start (common practice of mount firmware, which then tracks past the meridian up to
@@ -30,29 +17,11 @@ import math
 import numpy as np
 
 from .horizon_geometry import SIDEREAL_DEG_PER_S
+from .pointing_model.pier_sides import (EAST, POLAR_ANGLE_OFFSET_DEG, WEST, axis_angles,
+                                        side_of)
 from .schedule_model import NightProblem, night_problem
 from .schedule_slew import Mount
 from .vectors import wrap_pm180
-
-EAST, WEST = 0, 1
-# Offset of the polar-axis angle from the hour angle on each side (deg).
-_THETA_OFFSET_DEG = np.array([90.0, -90.0])
-
-
-def axis_angles(ha_deg, dec_deg, side, pole_sign: float = 1.0):
-    """Mechanical (theta, psi) in degrees of a German mount pointing at (ha, dec) on `side`
-    (EAST = 0 or WEST = 1). theta in [-180, 180): the polar axis, 0 counterweight down; psi:
-    the declination axis, 90 at the pole."""
-    side = np.asarray(side)
-    theta = wrap_pm180(np.asarray(ha_deg, dtype=float) + _THETA_OFFSET_DEG[side])
-    psi = np.where(side == EAST, pole_sign * np.asarray(dec_deg, dtype=float),
-                   180.0 - pole_sign * np.asarray(dec_deg, dtype=float))
-    return theta, psi
-
-
-def side_of(ha_deg):
-    """The pier side a slew to hour angle `ha_deg` takes: EAST for H < 0, else WEST."""
-    return np.where(wrap_pm180(ha_deg) < 0.0, EAST, WEST)
 
 
 def side_windows(windows, duration_s: float, ha_start_deg: float):
@@ -113,7 +82,7 @@ def pier_problem(weight, duration_s, windows_s, night_end_s, ra_deg, dec_deg,
 def _item_table(ra, dec, side, windows, duration, mount: Mount) -> np.ndarray:
     m, rate, p = ra.size, mount.slew_rate_deg_s, mount.pole_sign
     table = np.zeros((m + 1, m + 1))
-    offset = _THETA_OFFSET_DEG[side]
+    offset = POLAR_ANGLE_OFFSET_DEG[side]
     _, psi = axis_angles(np.zeros(m), dec, side, p)
     # Polar axis: at one instant H_b - H_a = ra_a - ra_b.
     d_theta = wrap_pm180((ra[:, None] - ra[None, :]) + offset[None, :] - offset[:, None])

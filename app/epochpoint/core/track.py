@@ -23,8 +23,8 @@ is refused unless a solar filter is declared fitted (core.limits.Interlocks.viol
 
 Slews: both axes move at once at the mount's slew rate, then it settles (the planner's model,
 core.schedule_slew); a German equatorial mount moves its mechanical axes, through a pier flip
-when the side changes (core.schedule_pier). Cost: one context plus one vectorized call, about
-a millisecond for an hour sampled every second.
+when the side changes (core.pointing_model.pier_sides). Cost: one context plus one vectorized
+call, about a millisecond for an hour sampled every second.
 """
 from __future__ import annotations
 
@@ -39,7 +39,7 @@ from .export import sun_separation_deg
 from .horizon_geometry import SIDEREAL_DEG_PER_S
 from .limits import MountLimits
 from .observed import observed_place
-from .schedule_pier import axis_angles, side_of
+from .pointing_model.pier_sides import axis_angles, pole_sign_for, side_of
 from .schedule_slew import _axis_slew_deg
 from .site import Site
 from .vectors import separation, unit_vectors
@@ -103,11 +103,11 @@ def slew_seconds(ha_from_deg: float, dec_from_deg: float, ha_to_deg: float, dec_
 
     Equatorial mounts: travel in hour angle and declination (core.schedule_slew); German
     equatorial mounts: travel of the mechanical axes on the pier sides of the two hour angles
-    (core.schedule_pier.axis_angles, a flip when the sides differ); alt-az mounts are costed
-    as equatorial ones (an upper bound on neither, an estimate like the planner's).
+    (core.pointing_model.pier_sides.axis_angles, a flip when the sides differ); alt-az mounts
+    are costed as equatorial ones (an upper bound on neither, an estimate like the planner's).
     """
     if mount.mount_type == "german":
-        pole = 1.0 if latitude_deg >= 0.0 else -1.0
+        pole = pole_sign_for(latitude_deg)
         theta_a, psi_a = axis_angles(ha_from_deg, dec_from_deg, side_of(ha_from_deg), pole)
         theta_b, psi_b = axis_angles(ha_to_deg, dec_to_deg, side_of(ha_to_deg), pole)
         travel = max(abs(float(theta_b - theta_a)), abs(float(psi_b - psi_a)))

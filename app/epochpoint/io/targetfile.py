@@ -54,7 +54,8 @@ def read_targets(path, skip_bad_rows: bool = False, on_skip=None) -> Targets:
         from .catalogues.mpc_elements import parse_mpc_elements
         from .filebytes import decode_utf8
 
-        return parse_mpc_elements(path, decode_utf8(path, data))
+        return parse_mpc_elements(path, decode_utf8(path, data), skip_bad_rows=skip_bad_rows,
+                                  on_skip=on_skip)
     if fmt == "csv":
         raw = read_csv_targets(path, data)
     else:  # astropy.table (about 0.1 s to import) only for the table formats

@@ -22,6 +22,11 @@ pnm06a and bp06); the aberration left out of that offset changes by under 0.4 ar
 of offset (the annual aberration's 20.5 arcsec times the offset in radians). The interlocks then
 judge the sky place and the commanded axes, and say which one they refuse.
 
+For a German equatorial mount the place comes with the pier side a slew to it takes (that of
+the hour angle, with a model the commanded axes'; core.pointing_model.pier_sides), or the side
+given, on which a German model (mount type "german") corrects; before a slew mount.telescope
+finds the side at the slew's estimated end and checks the meridian limit over the track.
+
 Cost: one positions() call for one star plus one Sun place, about 10 ms.
 """
 from __future__ import annotations
@@ -34,7 +39,7 @@ import numpy as np
 from ..core.apparent import apply_parallax, rotate
 from ..core.constants import DEG_TO_RAD, RAD_TO_DEG
 from ..core.export import placed, refusals, sun_rows, sun_separation_deg
-from ..core.pointing_model.mount_frame import mount_axes, place_of_date
+from ..core.pointing_model.mount_frame import mount_axes, pier_side_for, place_of_date
 from ..core.site import Site
 from ..core.targets import Targets
 from ..core.vectors import to_spherical, unit_vectors
@@ -66,6 +71,11 @@ class Pointing:
     rate_ra_arcsec_s: float = float("nan")
     rate_dec_arcsec_s: float = float("nan")
     is_sun: bool = False
+    # A German mount: the pier side a slew to this place takes, "east" (target east of the
+    # meridian) or "west" (core.pointing_model.pier_sides; with a model, the commanded axes'
+    # hour angle); before a slew, mount.telescope.checked_track makes it the side at the
+    # slew's estimated end. "" for other mounts.
+    pier_side: str = ""
 
     @property
     def is_body(self) -> bool:
@@ -121,9 +131,13 @@ def shifted_place(ra_deg, dec_deg, base_from, base_to, rotation) -> tuple[float,
     return float(ra[0] * RAD_TO_DEG) % 360.0, float(dec[0] * RAD_TO_DEG)
 
 
-def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None) -> Pointing:
+def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None,
+                 pier_side: str = "") -> Pointing:
     """The place to send for target `name` at `when`, with the interlocks' verdict; with a
-    pointing model (core.pointing_model.PointingModel) the place its axes need."""
+    pointing model (core.pointing_model.PointingModel) the place its axes need. pier_side
+    ("east"/"west"): the side a German mount will be on (mount.telescope.checked_track finds
+    it for the slew's end), which a German model corrects on; "" for the side a slew to the
+    place now takes."""
     one = find_target(targets, name)
     result = placed(one, site, when)
     source = _body_source(one)
@@ -143,7 +157,8 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
         ctx = result.context
         # Observed place -> the model's axes -> the coordinates of date for those axes.
         axes = mount_axes(model, result["ha"], result["dec_observed"], result["alt"],
-                          result["az"], site.latitude)
+                          result["az"], site.latitude,
+                          pier_side=pier_side if pier_side and model.german else None)
         ra_cmd, dec_cmd = place_of_date(axes.ha, axes.dec, ctx.site.last_rad * RAD_TO_DEG)
         command_eod = (float(ra_cmd[0]), float(dec_cmd[0]))
         command_j2000 = shifted_place(*command_eod, (result["ra_apparent"][0],
@@ -157,6 +172,9 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
                             + [f"commanded axes {axes_refusal}"] * bool(axes_refusal))
         model_fields = dict(axes_deg=(float(axes.ha[0]), float(axes.dec[0])),
                             command_eod_deg=command_eod, command_j2000_deg=command_j2000)
+        if not pier_side and axes.pier_side is not None:  # the side a German model chose
+            pier_side = str(np.ravel(axes.pier_side)[0])
+    ha_axes = model_fields["axes_deg"][0] if model_fields else float(result["ha"][0])
     return Pointing(
         name=str(name), time=result.meta["time"],
         ra_apparent_deg=float(result["ra_apparent"][0]),
@@ -164,7 +182,16 @@ def pointing_for(targets: Targets, site: Site, name: str, when="now", model=None
         ra_j2000_deg=ra_j2000, dec_j2000_deg=dec_j2000,
         alt_deg=float(result["alt"][0]), az_deg=float(result["az"][0]),
         ha_deg=float(result["ha"][0]), dec_observed_deg=float(result["dec_observed"][0]),
-        sun_separation_deg=float(sun_deg[0]), refusal=refusal, **model_fields, **body_fields)
+        sun_separation_deg=float(sun_deg[0]), refusal=refusal,
+        pier_side=pier_side or pier_side_of(site, ha_axes), **model_fields, **body_fields)
+
+
+def pier_side_of(site: Site, ha_axes_deg: float) -> str:
+    """The pier side ("east"/"west") a German mount takes for axes at this hour angle (deg;
+    core.pointing_model.pier_sides); "" for other mounts."""
+    if site.interlocks.mount.mount_type != "german":
+        return ""
+    return str(pier_side_for(float(ha_axes_deg)))
 
 
 def _body_source(one: Targets):

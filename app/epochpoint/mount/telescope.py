@@ -8,8 +8,17 @@ EQUATORIAL_EOD_COORD (RA in hours, DEC in degrees, true equator and equinox of d
 EQUATORIAL_COORD (the same at J2000); ON_COORD_SET (TRACK, SLEW, SYNC);
 TELESCOPE_ABORT_MOTION (ABORT); TELESCOPE_PARK (PARK); TELESCOPE_TRACK_STATE (TRACK_ON);
 TARGET_EOD_COORD; GEOGRAPHIC_COORD (LAT, LONG east 0..360, ELEV metres); TIME_UTC (UTC,
-OFFSET hours). A controller converts of-date coordinates with its own site and clock, so
-`status()` reports them for comparison with ours and `push_site()` sends ours.
+OFFSET hours); TELESCOPE_PIER_SIDE (PIER_WEST, PIER_EAST; read only). A controller converts
+of-date coordinates with its own site and clock, so `status()` reports them for comparison
+with ours and `push_site()` sends ours.
+
+A German equatorial mount takes the pier side of the target's hour angle at the slew's end
+and must flip once it tracks past its meridian limit: before a slew the side at the slew's
+estimated end and the track over the hold time are checked (core.limits.pier_flip_check), a
+flip needed mid-track refuses the slew, and the side is said beside the device's
+TELESCOPE_PIER_SIDE, before the slew and after it. INDI names the side the tube is on
+(PIER_WEST: "West (pointing east)"), we name the side of the meridian the target is on: our
+east is INDI's PIER_WEST.
 
 Threads: a GUI worker calls `slew_to_target()` (it blocks, always with a deadline); `abort()`
 may be called meanwhile from any other thread, and the waiting slew then sees the motion end.
@@ -53,7 +62,7 @@ from __future__ import annotations
 
 import threading
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from datetime import datetime, timezone
 from typing import Callable
 from zoneinfo import ZoneInfo, ZoneInfoNotFoundError
@@ -64,7 +73,9 @@ from astropy.time import TimeDelta
 
 from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
 from ..core.context import make_context
-from ..core.limits import SOLAR_CAUTION
+from ..core.horizon_geometry import SIDEREAL_DEG_PER_S
+from ..core.limits import SOLAR_CAUTION, pier_flip_check
+from ..core.pointing_model.pier_sides import pier_side_for
 from ..core.site import Site
 from ..core.targets import Targets
 from ..core.timescale import parse_time
@@ -107,6 +118,13 @@ AT_LIMIT = ("stop-tracking", "abort")
 INDI_SIDEREAL_ARCSEC_S = 1296000.0 / 86164.0905
 TRACK_RATE = "TELESCOPE_TRACK_RATE"
 TRACK_MODE = "TELESCOPE_TRACK_MODE"
+# INDI's TELESCOPE_PIER_SIDE names where the tube is: PIER_WEST "West (pointing east)" and
+# PIER_EAST "East (pointing west)" (the labels the INDI telescope simulator defines, indi-bin
+# 1.9.9). Our sides name where the target is (core.pointing_model.pier_sides): a target east of
+# the meridian puts the tube west of the pier.
+PIER_SIDE = "TELESCOPE_PIER_SIDE"
+INDI_PIER_SIDE = {"east": "PIER_WEST", "west": "PIER_EAST"}
+SIDE_OF_INDI = {indi: ours for ours, indi in INDI_PIER_SIDE.items()}
 # Re-slew cadence bounds for a body on a mount without a track rate: a re-slew takes about
 # a settle time, so not more often than every 10 s; and at least every 10 minutes.
 RESLEW_MIN_S = 10.0
@@ -163,6 +181,9 @@ class SlewReport:
     # re-slew cadence (s). pointing.time is then the slew's estimated end.
     follow: str = ""
     reslew_s: float | None = None
+    # What the device reported in TELESCOPE_PIER_SIDE once the motion ended (PIER_EAST or
+    # PIER_WEST; "" when it reports none or was not followed); ours is pointing.pier_side.
+    device_pier_side: str = ""
 
     @property
     def within_tolerance(self) -> bool | None:
@@ -529,8 +550,15 @@ class Telescope:
 
     def pier_west(self) -> bool:
         """True when the device reports TELESCOPE_PIER_SIDE PIER_WEST."""
-        side = self._vector("TELESCOPE_PIER_SIDE")
-        return side is not None and bool(side.values.get("PIER_WEST"))
+        return self.reported_pier_side() == "PIER_WEST"
+
+    def reported_pier_side(self) -> str:
+        """The device's TELESCOPE_PIER_SIDE switch that is on (PIER_EAST or PIER_WEST); ""
+        when it has none or reports neither."""
+        side = self._vector(PIER_SIDE)
+        if side is None:
+            return ""
+        return next((name for name in ("PIER_EAST", "PIER_WEST") if side.values.get(name)), "")
 
     def offers_track_rate(self) -> bool:
         """Whether the device has INDI's custom tracking rate (TELESCOPE_TRACK_RATE with
@@ -663,11 +691,11 @@ def _place_text(prop: str, ra_deg: float, dec_deg: float) -> str:
 
 
 def checked_pointing(targets: Targets, site: Site, name: str, when="now",
-                     model=None, notify: Notify = _silent) -> Pointing:
-    """The target's place now (with a pointing model, also its commanded axes), or
-    InterlockRefused with the reason (nothing is sent). The Sun, allowed only with the
-    solar option on, comes with SOLAR_CAUTION every time."""
-    pointing = pointing_for(targets, site, name, when, model=model)
+                     model=None, notify: Notify = _silent, pier_side: str = "") -> Pointing:
+    """The target's place now (with a pointing model, also its commanded axes; a German
+    model's on pier_side when given), or InterlockRefused with the reason (nothing is sent).
+    The Sun, allowed only with the solar option on, comes with SOLAR_CAUTION every time."""
+    pointing = pointing_for(targets, site, name, when, model=model, pier_side=pier_side)
     if not pointing.allowed:
         raise InterlockRefused(name, pointing.refusal)
     if pointing.is_sun:
@@ -702,6 +730,11 @@ def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
     commanded axes' place of date is judged as well."""
     pointing = checked_pointing(targets, site, name, model=model, notify=notify)
     slew_s = slew_seconds_from_mount(scope, pointing, site)
+    side = side_at_slew_end(pointing, site, slew_s)
+    if model is not None and model.german and side != pointing.pier_side:
+        # A German model corrects on the side the mount will be on when the slew ends.
+        pointing = checked_pointing(targets, site, name, pointing.time, model=model,
+                                    pier_side=side)
     ctx = make_context(pointing.time, site)
     motion = None
     if pointing.is_body:
@@ -721,25 +754,93 @@ def checked_track(scope: Telescope, targets: Targets, site: Site, name: str,
     if at_s is not None:
         raise InterlockRefused(name, f"{why} {(at_s - slew_s) / 60.0:.1f} min into the "
                                      f"{track_s / 60.0:g} min track after the slew")
+    pier_line = checked_pier_side(scope, pointing, site, name, slew_s, track_s)
     notify(f"Interlocks: {name} allowed now, at the end of the slew (about {slew_s:.0f} s) "
            f"and for {track_s / 60.0:g} min of tracking after it"
            + (", along its own motion." if motion is not None else "."))
+    if pier_line:
+        notify(pier_line)
     if pointing.is_body:
-        pointing = place_at_slew_end(scope, targets, site, name, ctx.time, model, notify)
-    return pointing
+        pointing = place_at_slew_end(scope, targets, site, name, ctx.time, model, notify,
+                                     pier_side=side)
+    return replace(pointing, pier_side=side) if side else pointing
+
+
+def _ha_at_slew_end(pointing: Pointing, slew_s: float) -> float:
+    """The hour angle (deg) the mount turns to: the target's observed one (with a model, the
+    commanded axes': what the controller turns) when the slew ends, the sky having turned at
+    the sidereal rate meanwhile."""
+    ha_now = pointing.ha_deg if pointing.axes_deg is None else pointing.axes_deg[0]
+    return ha_now + SIDEREAL_DEG_PER_S * slew_s
+
+
+def side_at_slew_end(pointing: Pointing, site: Site, slew_s: float) -> str:
+    """The pier side a German mount takes for this slew ("" for other mounts)."""
+    if site.interlocks.mount.mount_type != "german":
+        return ""
+    return str(pier_side_for(_ha_at_slew_end(pointing, slew_s)))
+
+
+def checked_pier_side(scope: Telescope, pointing: Pointing, site: Site, name: str,
+                      slew_s: float, track_s: float) -> str:
+    """A German mount: a line on the pier side it takes at the slew's estimated end
+    (side_at_slew_end) beside what the device reports now; InterlockRefused, nothing sent,
+    when tracking track_s seconds after the slew would pass that side's meridian limit
+    (core.limits.pier_flip_check). "" for other mounts."""
+    mount = site.interlocks.mount
+    if mount.mount_type != "german":
+        return ""
+    ha_end = _ha_at_slew_end(pointing, slew_s)
+    check = pier_flip_check(ha_end, track_s, mount.meridian_limit)
+    side, limit_s = str(check.side[()]), float(check.limit_s)
+    where = f"hour angle {(ha_end + 180.0) % 360.0 - 180.0:+.2f} deg at the slew's end"
+    if check.flip:
+        raise InterlockRefused(name, f"would cross the meridian limit ({mount.meridian_limit:g} "
+                                     f"deg past the meridian) on the {side} pier side "
+                                     f"{limit_s / 60.0:.1f} min into the {track_s / 60.0:g} min "
+                                     f"track: flip needed ({where}, the slew estimated at "
+                                     f"{slew_s:.0f} s)")
+    ahead = (f"the meridian limit comes {limit_s / 60.0:.1f} min after the slew, beyond the "
+             f"{track_s / 60.0:g} min track" if side == "east" else
+             "no meridian flip ahead on this side while it tracks")
+    device = scope.reported_pier_side()
+    return (f"Pier side: {side_words(side)}, {where}; {ahead}"
+            + (f"; the device reports {device} now, before the slew" if device else "") + ".")
+
+
+def side_words(side: str) -> str:
+    """Our pier side with INDI's name for it, e.g. "east (INDI PIER_WEST: the tube west of
+    the pier, pointing east)"."""
+    tube = "west" if side == "east" else "east"
+    return f"{side} (INDI {INDI_PIER_SIDE[side]}: the tube {tube} of the pier, pointing {side})"
+
+
+def pier_side_comparison(ours: str, device: str) -> str:
+    """Our pier side beside the device's TELESCOPE_PIER_SIDE, in one sentence; "" when
+    neither is known."""
+    if not ours:
+        return (f"The device reports {device} (the site's mount is not German equatorial: no "
+                "pier-side check).") if device else ""
+    if not device:
+        return f"Pier side: ours {side_words(ours)}; the device reports none."
+    if SIDE_OF_INDI.get(device) == ours:
+        return f"Pier side: ours {side_words(ours)}; the device reports {device}, the same side."
+    return (f"Caution: the device reports {device}, not our {ours} side ({INDI_PIER_SIDE[ours]}) "
+            "that the meridian-limit check assumed: watch the mount for a flip.")
 
 
 def place_at_slew_end(scope: Telescope, targets: Targets, site: Site, name: str, start,
-                      model=None, notify: Notify = _silent) -> Pointing:
+                      model=None, notify: Notify = _silent, pier_side: str = "") -> Pointing:
     """A body's place at the estimated end of a slew begun at `start`: the slew time to its
     place at start, the place at start + that time, the slew time to that place, and the
-    place then (one iteration; the body moves under 1 arcsec/s, the mount degrees/s)."""
+    place then (one iteration; the body moves under 1 arcsec/s, the mount degrees/s); a
+    German model's on pier_side when given."""
     t0 = parse_time(start)
-    later = pointing_for(targets, site, name, t0, model=model)
+    later = pointing_for(targets, site, name, t0, model=model, pier_side=pier_side)
     for _ in range(2):
         slew_s = slew_seconds_from_mount(scope, later, site)
         later = pointing_for(targets, site, name, t0 + TimeDelta(slew_s, format="sec"),
-                             model=model)
+                             model=model, pier_side=pier_side)
     if not later.allowed:
         raise InterlockRefused(name, f"{later.refusal} at the end of the slew ({later.time})")
     notify(f"{name} moves ({later.rate_ra_arcsec_s:+.4f}, {later.rate_dec_arcsec_s:+.4f} "
@@ -861,7 +962,7 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
                           pointing=pointing, **report)
 
     state = _follow(scope, command, timeout_s, action, started, notify, stopped)
-    residual = _residual(scope, command, targets, site, name, model)
+    residual = _residual(scope, command, targets, site, name, model, pointing.pier_side)
     report.update(first_residual_arcsec=residual, residual_arcsec=residual, final_state=state,
                   aborted=stopped())
     # Refine only a slew that ended normally: never move again after an abort.
@@ -877,7 +978,8 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
             command = refine
             state = _follow(scope, command, timeout_s, "refining slew", time.monotonic(),
                             notify, stopped)
-            residual = _residual(scope, command, targets, site, name, model)
+            residual = _residual(scope, command, targets, site, name, model,
+                                 pointing.pier_side)
             report.update(residual_arcsec=residual, final_state=state, refined=True,
                           aborted=stopped())
     if pointing.is_body and not sync and state == "Ok" and not stopped():
@@ -886,6 +988,11 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
         report.update(follow=follow, reslew_s=reslew_s)
     v = scope.client.vector(scope.device, command.coordinate_property)
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
+    if not sync:
+        report.update(device_pier_side=scope.reported_pier_side())
+        said = pier_side_comparison(pointing.pier_side, report["device_pier_side"])
+        if said:
+            notify(said)
     return SlewReport(commanded_ra_deg=command.ra_deg, commanded_dec_deg=command.dec_deg,
                       pointing=pointing, **report)
 
@@ -951,10 +1058,10 @@ def _follow(scope: Telescope, command: _Command, timeout_s: float, what: str, st
 
 
 def _residual(scope: Telescope, command: _Command, targets: Targets, site: Site,
-              name: str, model=None) -> float:
+              name: str, model=None, pier_side: str = "") -> float:
     """Reported coordinates against the place commanded now (the target's, or with a model
-    its axes'), in the command's frame (arcsec)."""
-    now = pointing_for(targets, site, name, model=model)
+    its axes', a German model's on the slew's pier side), in the command's frame (arcsec)."""
+    now = pointing_for(targets, site, name, model=model, pier_side=pier_side)
     v = scope.client.vector(scope.device, command.coordinate_property)
     ra_deg, dec_deg = command_place(now, command.coordinate_property)
     return angular_distance_arcsec(v.values["RA"] * 15.0, v.values["DEC"], ra_deg, dec_deg)

@@ -4,7 +4,9 @@ Each sample is one centred star: its sky place and the mount's axis readings the
 offsets (mount minus sky) are linear in the term values (terms.py), so the model is the
 ordinary least-squares solution of A p = y, solved by numpy.linalg.lstsq, with the offsets
 along the first axis weighted by cos(second axis) so that both rows of a sample are arcseconds
-on the sky. Standard errors are the square roots of the covariance diagonal
+on the sky. A German mount's samples carry their pier side: the terms in its declination
+axis's frame enter the design with the factor +1 on the east side and -1 on the west
+(terms.py). Standard errors are the square roots of the covariance diagonal
 sigma^2 (A^T A)^-1, sigma^2 = residual sum of squares / (2 n - m) (e.g. Press et al.,
 Numerical Recipes, 3rd ed. 2007, sec. 15.4); a term's significance is value / error.
 
@@ -29,7 +31,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from .model import ARCSEC_PER_DEG, PointingModel, wrap_ha
-from .terms import term_set
+from .pier_sides import EAST, PIER_SIDES, WEST, side_names
+from .terms import HOUR_ANGLE_MOUNTS, term_set
 
 MIN_INDEPENDENCE = 0.02
 REJECT_SIGMA = 3.44
@@ -52,13 +55,39 @@ class PointingFit:
     kept: np.ndarray  # bool per sample
     before_arcsec: tuple  # (along first axis times cos second, along second) per sample
     after_arcsec: tuple
+    pier_side: np.ndarray | None = None  # "east"/"west" per sample (a German mount's)
 
 
-def _design(terms, m1, m2, lat_rad, weight) -> np.ndarray:
-    """Rows [first-axis patterns * weight; second-axis patterns] per term as columns."""
-    cols = [np.concatenate([t.first(m1, m2, lat_rad) * weight * np.ones_like(m1),
-                            t.second(m1, m2, lat_rad) * np.ones_like(m1)]) for t in terms]
+def _design(terms, m1, m2, lat_rad, weight, side_sign=None) -> np.ndarray:
+    """Rows [first-axis patterns * weight; second-axis patterns] per term as columns; the
+    terms that flip with the pier side times side_sign (+1 east, -1 west) when given."""
+    cols = []
+    for t in terms:
+        scale = side_sign if t.flips_with_pier and side_sign is not None else 1.0
+        cols.append(np.concatenate([t.first(m1, m2, lat_rad) * weight * scale * np.ones_like(m1),
+                                    t.second(m1, m2, lat_rad) * scale * np.ones_like(m1)]))
     return np.stack(cols, axis=1)
+
+
+def _sample_sides(pier_side, n: int, names) -> np.ndarray | None:
+    """Side codes (EAST/WEST) per sample from names ("east"/"west", any case; "" or None
+    unknown, -1); None when no sides are given."""
+    if pier_side is None:
+        return None
+    given = np.asarray(pier_side, dtype=object)
+    given = np.full(n, given.item(), dtype=object) if given.ndim == 0 else given.ravel()
+    words = np.char.lower(np.char.strip(np.asarray(
+        ["" if v is None else str(v) for v in given], dtype=str)))
+    if words.size != n:
+        raise ValueError(f"{words.size} pier sides for {n} samples")
+    codes = np.full(n, -1)
+    codes[words == PIER_SIDES[EAST]] = EAST
+    codes[words == PIER_SIDES[WEST]] = WEST
+    bad = np.flatnonzero((codes < 0) & (words != ""))
+    if bad.size:
+        raise ValueError(f"sample {names[bad[0]]}: {str(words[bad[0]])!r} is not a pier side "
+                         f"(east or west)")
+    return codes
 
 
 def _independent_terms(design: np.ndarray, terms) -> tuple[list[int], list[str]]:
@@ -97,19 +126,28 @@ def _patch_size_deg(m1, m2, equatorial: bool) -> float:
 
 def fit_pointing_model(sky_first_deg, sky_second_deg, mount_first_deg, mount_second_deg, *,
                        mount_type: str, latitude_deg: float, terms=None,
-                       names=None) -> PointingFit:
+                       names=None, pier_side=None) -> PointingFit:
     """Fit a pointing model (see module docstring) to samples: sky places and mount readings,
-    (ha, dec) for an equatorial mount or (az, alt) for an alt-az mount, in degrees.
+    (ha, dec) for an equatorial or German mount or (az, alt) for an alt-az mount, in degrees;
+    pier_side ("east"/"west" per sample) is needed for a German mount, and an equatorial fit
+    given samples on both sides notes that a German fit would model them.
 
     Warns PoorCoverage (and notes it in the model) when the samples lie in one patch of sky
-    or a term had to be left out; raises ValueError when there are too few samples.
+    or a term had to be left out; raises ValueError when there are too few samples or a German
+    mount's sample has no pier side.
     """
     chosen = term_set(mount_type, terms)
-    equatorial = mount_type == "equatorial"
+    equatorial = mount_type in HOUR_ANGLE_MOUNTS
     s1, s2, m1d, m2d = (np.asarray(x, dtype=float).ravel() for x in
                         (sky_first_deg, sky_second_deg, mount_first_deg, mount_second_deg))
     n = s1.size
     names = [f"row {i + 1}" for i in range(n)] if names is None else [str(x) for x in names]
+    codes = _sample_sides(pier_side, n, names)
+    german = mount_type == "german"
+    if german and (codes is None or np.any(codes < 0)):
+        which = 0 if codes is None else int(np.flatnonzero(codes < 0)[0])
+        raise ValueError(f"sample {names[which] if n else ''}: a German mount's samples need "
+                         f"their pier side (east or west)")
     if 2 * n < len(chosen) + 2:
         raise ValueError(f"{n} samples are too few for {len(chosen)} terms: record at least "
                          f"{(len(chosen) + 3) // 2}, spread over the sky")
@@ -119,9 +157,13 @@ def fit_pointing_model(sky_first_deg, sky_second_deg, mount_first_deg, mount_sec
     d2 = (m2d - s2) * ARCSEC_PER_DEG
     weight = np.cos(m2)
     y = np.concatenate([d1 * weight, d2])
-    design = _design(chosen, m1, m2, lat, weight)
+    side_sign = np.where(codes == EAST, 1.0, -1.0) if german else None
+    design = _design(chosen, m1, m2, lat, weight, side_sign)
 
     notes = []
+    if mount_type == "equatorial" and codes is not None and {EAST, WEST} <= set(codes.tolist()):
+        notes.append("the samples are on both pier sides: fit them as a German mount (mount "
+                     "type german), whose declination-axis terms change sign with the side")
     patch = _patch_size_deg(m1, m2, equatorial)
     if patch < MIN_PATCH_DEG:
         notes.append(f"the samples lie in one patch about {patch:.0f} deg across: the terms "
@@ -160,5 +202,6 @@ def fit_pointing_model(sky_first_deg, sky_second_deg, mount_first_deg, mount_sec
         rms_after_arcsec=float(np.sqrt(np.mean(r1[kept] ** 2 + r2[kept] ** 2))),
         samples=int(kept.sum()), rejected=tuple(np.asarray(names, dtype=object)[~kept]),
         notes=tuple(notes))
+    sides = side_names(codes) if german else None
     return PointingFit(model=model, kept=kept, before_arcsec=(d1 * weight, d2),
-                       after_arcsec=(r1, r2))
+                       after_arcsec=(r1, r2), pier_side=sides)

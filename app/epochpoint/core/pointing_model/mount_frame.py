@@ -1,7 +1,12 @@
 """The mount-frame stage: from the observed place to the mount's axes, and from the axes to the
 coordinates of date a controller takes (and back, for what a mount reports).
 
-    observed place (ha, dec) or (az, alt) --model--> mount axes --LAST--> RA, Dec of date
+    observed place (ha, dec) or (az, alt) --model, pier side--> mount axes --LAST--> RA, Dec
+
+A German equatorial mount reaches a place on one of two pier sides; the side changes the
+pointing model's declination-axis terms (terms.py) and the mechanical angles of its axes
+(pier_sides.py, the one home of that geometry, whose names are re-exported here for the
+slew, the interlocks and the scheduler's slew costs).
 
 A controller that takes coordinates of date (INDI EQUATORIAL_EOD_COORD) turns them into the
 hour angle of its axes with its own local apparent sidereal time, HA = LAST - RA (common
@@ -26,17 +31,24 @@ import numpy as np
 
 from ..constants import DEG_TO_RAD, RAD_TO_DEG
 from .model import PointingModel, wrap_ha
+from .pier_sides import (EAST, PIER_SIDES, WEST, axis_angles, pier_side_for,  # noqa: F401
+                         pole_sign_for, side_codes, side_names, side_of)
 
 
 @dataclass(frozen=True)
 class MountAxes:
     """Where the axes must be (degrees), as hour angle/declination and as azimuth/altitude,
-    whatever the mount type (the interlocks judge both)."""
+    whatever the mount type (the interlocks judge both). A German mount's also carry the
+    pier side ("east"/"west" per place) and the mechanical angles on it (pier_sides.py:
+    polar_angle 0 counterweight down, dec_angle 90 at the pole); None for other mounts."""
 
     ha: np.ndarray
     dec: np.ndarray
     alt: np.ndarray
     az: np.ndarray
+    pier_side: np.ndarray | None = None
+    polar_angle: np.ndarray | None = None
+    dec_angle: np.ndarray | None = None
 
 
 def altaz_from_hadec(ha_deg, dec_deg, latitude_deg) -> tuple[np.ndarray, np.ndarray]:
@@ -53,17 +65,38 @@ def hadec_from_altaz(alt_deg, az_deg, latitude_deg) -> tuple[np.ndarray, np.ndar
     return wrap_ha(ha * RAD_TO_DEG), dec * RAD_TO_DEG
 
 
-def mount_axes(model: PointingModel, ha_deg, dec_deg, alt_deg, az_deg,
-               latitude_deg: float) -> MountAxes:
-    """Where the axes must go to see the observed place (ha, dec; alt, az), by the model."""
-    if model.mount_type == "equatorial":
-        ha_m, dec_m = model.mount_from_sky(ha_deg, dec_deg)
+def mount_axes(model: PointingModel | None, ha_deg, dec_deg, alt_deg, az_deg,
+               latitude_deg: float, pier_side=None) -> MountAxes:
+    """Where the axes must go to see the observed place (ha, dec; alt, az), by the model
+    (None: a perfect mount, the axes on the observed place).
+
+    pier_side: "east"/"west" (any case; a scalar or one per place) for a German mount, None
+    otherwise. A German model (mount_type "german") corrects on the given side, or without one
+    on the side a slew takes (model.py); an equatorial model ignores the side, which is still
+    carried with the mechanical angles (a German mount with a fork-style model or none); an
+    alt-az model has no side. Degrees in and out; per place a few array operations and the
+    model's inversion (two for a German model choosing the side).
+    """
+    sides = None
+    if model is None or model.equatorial:
+        if model is None:
+            ha_m, dec_m = wrap_ha(ha_deg), np.asarray(dec_deg, dtype=float)
+        else:
+            ha_m, dec_m, sides = model.mount_from_sky_with_side(ha_deg, dec_deg, pier_side)
+        if sides is None and pier_side is not None:
+            sides = side_names(pier_side, np.shape(ha_m))
         alt_m, az_m = altaz_from_hadec(ha_m, dec_m, latitude_deg)
-    else:
+    else:  # an alt-az mount has no pier side
         az_m, alt_m = model.mount_from_sky(az_deg, alt_deg)
         ha_m, dec_m = hadec_from_altaz(alt_m, az_m, latitude_deg)
+    polar = dec_axis = None
+    if sides is not None:
+        # The mechanical angles of the axes on that side.
+        polar, dec_axis = axis_angles(ha_m, dec_m, side_codes(sides),
+                                      pole_sign_for(latitude_deg))
     return MountAxes(ha=np.asarray(ha_m), dec=np.asarray(dec_m), alt=np.asarray(alt_m),
-                     az=np.asarray(az_m))
+                     az=np.asarray(az_m), pier_side=sides, polar_angle=polar,
+                     dec_angle=dec_axis)
 
 
 def place_of_date(ha_axes_deg, dec_axes_deg, last_deg) -> tuple[np.ndarray, np.ndarray]:

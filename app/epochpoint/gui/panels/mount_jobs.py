@@ -112,12 +112,15 @@ class MountJob(QObject):
             self.finished.emit()
 
 
-def record_to_file(scope: Telescope, targets, site, name: str, path: str) -> dict:
-    """Read where the mount's axes are on the centred star `name` (mount.calibration) and
-    append that sample to the samples file `path` (io.pointing_samples); the sample."""
+def record_to_file(scope: Telescope, targets, site, name: str, path: str,
+                   slew_side: str = "") -> dict:
+    """Read where the mount's axes are on the centred star `name` (mount.calibration; a
+    German mount's pier side from the device, else slew_side, the side the slew's check
+    found) and append that sample to the samples file `path`, keeping its other columns
+    (io.pointing_samples); the sample."""
     from ...io.pointing_samples import append_sample
     from ...mount.calibration import read_sample
 
-    sample = read_sample(scope, targets, site, name)
+    sample = read_sample(scope, targets, site, name, slew_side=slew_side)
     append_sample(path, sample)
     return sample

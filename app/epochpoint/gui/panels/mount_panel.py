@@ -29,6 +29,7 @@ from PySide6.QtWidgets import (QComboBox, QDialog, QDoubleSpinBox, QGridLayout,
 from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import (CAUTION, ConnectionLost, Telescope, pointing_for, slew_to_target,
                       watch_track)
+from ...mount.calibration import sample_offsets_text
 from ...mount.telescope import FRAME_TEXT
 from .mount_jobs import (JOIN_TIMEOUT_S, MountJob, one_line, open_mount, record_to_file,
                          switch_device)
@@ -596,7 +597,8 @@ class MountPanel(QWidget):
         scope = self.scope
         dialog = ConfirmMotionDialog(
             confirmation_text(pointing, sync, scope.device, scope.coordinate_property(),
-                              site.interlocks.sun_avoidance), sync, self)
+                              site.interlocks.sun_avoidance, scope.reported_pier_side()),
+            sync, self)
         asked = time.monotonic()
         accepted = dialog.exec() == QDialog.DialogCode.Accepted
         dialog.deleteLater()
@@ -674,17 +676,16 @@ class MountPanel(QWidget):
             self._log("Choose a samples file to record into first.")
             return
         scope, one, site, name = target
-        self.busy_job = self._start("record", record_to_file, scope, one, site, name, path)
+        self.busy_job = self._start("record", record_to_file, scope, one, site, name, path,
+                                    self.last_report.pointing.pier_side)
         self.busy_job.done.connect(lambda sample: self._on_recorded(sample, path))
         self.busy_job.failed.connect(self._on_pushed)
         self._update_controls()
 
     def _on_recorded(self, sample, path: str) -> None:
         self.busy_job = None
-        dha = ((sample["ha_mount"] - sample["ha_target"] + 180.0) % 360.0 - 180.0) * 3600.0
-        ddec = (sample["dec_mount"] - sample["dec_target"]) * 3600.0
-        self._log(f"Recorded {sample['name']} into {path}: mount minus star {dha:+.1f}″ in "
-                  f"hour angle, {ddec:+.1f}″ in declination.")
+        self._log(f"Recorded {sample['name']} into {path}: "
+                  f"{sample_offsets_text(sample, arcsec='″')}.")
         self._update_controls()
 
     def _on_motion_failed(self, err) -> None:

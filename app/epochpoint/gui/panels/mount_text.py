@@ -6,9 +6,11 @@ from __future__ import annotations
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QDialog, QDialogButtonBox, QLabel, QVBoxLayout
 
+from ...core.limits import SOLAR_CAUTION
 from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import CAUTION
-from ...mount.telescope import FRAME_TEXT, J2000_COORD, command_place, sky_place
+from ...mount.telescope import (DEFAULT_TRACK_S, FRAME_TEXT, J2000_COORD, command_place,
+                                pier_side_comparison, side_words, sky_place)
 from ..number_text import fixed
 
 
@@ -31,10 +33,24 @@ def _model_lines(pointing, coordinate_property: str | None) -> list[str]:
             f"declination {fixed(pointing.axes_deg[1], 4, signed=True)}°."]
 
 
+def _pier_lines(pointing, device_pier_side: str) -> list[str]:
+    """A German mount: the pier side a slew now takes beside what the device reports now."""
+    side = getattr(pointing, "pier_side", "")  # any pointing-like object (mount.Pointing)
+    if not side:
+        return []
+    device = (f"the device reports {device_pier_side} now, before the slew" if device_pier_side
+              else "the device reports no pier side")
+    return [f"Pier side: {side_words(side)} for {pointing.name} now; {device}. "
+            f"The slew is refused if the {DEFAULT_TRACK_S / 60.0:g} min of tracking after it "
+            "would pass the meridian limit (a flip mid-track)."]
+
+
 def confirmation_text(pointing, sync: bool, device: str, coordinate_property: str | None,
-                      sun_avoidance_deg: float) -> str:
-    """What the confirmation states: the exact numbers to be sent, the target now, and for a
-    slew the caution (mount.CAUTION, the one text the command line prints too)."""
+                      sun_avoidance_deg: float, device_pier_side: str = "") -> str:
+    """What the confirmation states: the exact numbers to be sent, the target now, for a slew
+    on a German mount the pier side beside the device's (device_pier_side: its
+    TELESCOPE_PIER_SIDE now), and for a slew the caution (mount.CAUTION, the one text the
+    command line prints too)."""
     ra_deg, dec_deg, frame = sent_place(pointing, coordinate_property)
     what = (f"Sync {device} to {pointing.name}" if sync
             else f"Slew {device} to {pointing.name} and track it")
@@ -48,8 +64,11 @@ def confirmation_text(pointing, sync: bool, device: str, coordinate_property: st
         f"{pointing.name} at {pointing.time}: altitude {fixed(pointing.alt_deg, 2)}°, azimuth "
         f"{fixed(pointing.az_deg, 2)}°, {pointing.sun_separation_deg:.1f}° from the Sun "
         f"(avoidance radius {sun_avoidance_deg:g}°).",
+        *([] if sync else _pier_lines(pointing, device_pier_side)),
         "",
     ]
+    if pointing.is_sun:  # the Sun passes the interlocks only with the solar option on
+        lines += [SOLAR_CAUTION, ""]
     if sync:
         lines.append("A sync moves nothing: it tells the mount that it points at these "
                      "coordinates, and every later slew trusts that. Be sure the telescope is "
@@ -77,7 +96,9 @@ def report_text(report) -> str:
     if report.reported_ra_deg is not None:
         parts.append(f"device reports RA {format_ra_hms(report.reported_ra_deg, 2)} Dec "
                      f"{format_dec_dms(report.reported_dec_deg, 1)}")
-    return "; ".join(parts) + "."
+    pier = pier_side_comparison(report.pointing.pier_side, report.device_pier_side) \
+        if report.action == "slew" and report.final_state is not None else ""
+    return "; ".join(parts) + "." + (f" {pier}" if pier else "")
 
 
 class ConfirmMotionDialog(QDialog):

@@ -1,5 +1,5 @@
-"""The Site & limits tab: the observing site, its weather, the mount's limits, Sun avoidance
-and the horizon mask, as one form.
+"""The Site & limits tab: the observing site, its weather, the mount's limits, Sun avoidance,
+the solar option (solar_option.py) and the horizon mask, as one form.
 
 Every finished edit (Enter, leaving a field, a table cell or a choice) is checked by building
 the core objects themselves (MountLimits, HorizonMask, Interlocks, Site), so the rules live in
@@ -21,6 +21,7 @@ from ...core.limits import MOUNT_TYPES, HorizonMask, Interlocks, LimitError, Mou
 from ...core.site import Site, SiteError
 from .horizon_editor import HorizonCellError, HorizonEditor
 from .site_files import SiteFiles
+from .solar_option import SolarOption
 from .theme_link import theme_chart_style, theme_colour, watch_theme
 
 SUN_AVOIDANCE_WARN_DEG = 30.0
@@ -123,7 +124,7 @@ class SiteEditor(SiteFiles, QWidget):
         left.addStretch(1)
         right.addWidget(self._group("Mount limits", MOUNT_FIELDS, extra=self._mount_type_row,
                                     extra_first=True))
-        right.addWidget(self._group("Safety", SAFETY_FIELDS, extra=self._sun_warning_row))
+        right.addWidget(self._group("Safety", SAFETY_FIELDS, extra=self._safety_rows))
         right.addStretch(1)
         self.horizon = HorizonEditor()
         self.horizon.edited.connect(self.commit)
@@ -194,13 +195,17 @@ class SiteEditor(SiteFiles, QWidget):
         self._add_row(grid, row, "mount_type", "Mount type", combo)
         return row + 1
 
-    def _sun_warning_row(self, grid: QGridLayout, row: int) -> int:
+    def _safety_rows(self, grid: QGridLayout, row: int) -> int:
+        """The Sun-avoidance warning, then the solar option (asks before it goes on)."""
         self.sun_warning = QLabel("")
         self.sun_warning.setObjectName("sunWarning")
         self.sun_warning.setWordWrap(True)
         self.sun_warning.setVisible(False)
         grid.addWidget(self.sun_warning, row, 0, 1, 3)
-        return row + 1
+        self.solar_option = SolarOption()
+        self.solar_option.changed.connect(self.commit)
+        grid.addWidget(self.solar_option, row + 1, 0, 1, 3)
+        return row + 2
 
     # -- the contract -----------------------------------------------------------------------
     def set_site(self, site: Site | None) -> None:
@@ -226,6 +231,7 @@ class SiteEditor(SiteFiles, QWidget):
         for key, _, _ in MOUNT_FIELDS:
             self.fields[key].setText(_text_of(getattr(mount, key)))
         self.fields["sun_avoidance"].setText(_text_of(locks.sun_avoidance))
+        self.solar_option.set_on(locks.solar_filter_fitted)
         self.horizon.set_mask(locks.horizon)
         self._filling = False
         self._show_problems({})
@@ -288,7 +294,8 @@ class SiteEditor(SiteFiles, QWidget):
             problems["horizon"] = _core_message(error)
         interlocks = self._try(problems, lambda: Interlocks(
             mount=mount or MountLimits(), horizon=mask if mask is not False else None,
-            sun_avoidance=values["sun_avoidance"]), needs=["sun_avoidance"])
+            sun_avoidance=values["sun_avoidance"],
+            solar_filter_fitted=self.solar_option.is_on()), needs=["sun_avoidance"])
         # An empty zone is found from the coordinates; the core checks a named one.
         zone = self.fields["timezone"].currentText().strip() or None
         site_keys = [k for k, _, _ in PLACE_FIELDS[1:] + WEATHER_FIELDS]
@@ -342,7 +349,8 @@ class SiteEditor(SiteFiles, QWidget):
         """Theme colours for the error and warning text (their symbols carry the meaning)."""
         danger, warning = theme_colour("danger"), theme_colour("warning")
         self.setStyleSheet(f"QLabel#fieldError {{ color: {danger}; }} "
-                           f"QLabel#sunWarning {{ color: {warning}; font-weight: bold; "
+                           f"QLabel#sunWarning, QLabel#solarNote {{ color: {warning}; "
+                           f"font-weight: bold; "
                            f"border: 2px solid {warning}; padding: 4px; }}")
         self.horizon.canvas.style = theme_chart_style()
         if self.site is not None:

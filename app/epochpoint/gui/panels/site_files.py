@@ -59,7 +59,11 @@ class SiteFiles:
         self.site = in_force  # ... but the site in force changes only through commit
         self.commit()
         if not self.problems:
-            self.status.setText(f"Loaded {os.path.basename(path)}.")
+            # A file may switch the solar option on: said with its caution, as the box does.
+            solar = (" Its solar option is on (a solar filter declared fitted). " +
+                     " ".join(site.interlocks.cautions())) \
+                if site.interlocks.solar_filter_fitted else ""
+            self.status.setText(f"Loaded {os.path.basename(path)}.{solar}")
         return not self.problems
 
     def save_site_file(self, path: str) -> bool:

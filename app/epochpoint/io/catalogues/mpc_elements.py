@@ -22,7 +22,8 @@ the year, then month and day each as one character 1-9, A = 10, B = 11, ... V = 
 
 Header lines (the MPCORB file's preamble down to its line of dashes), blank lines and lines
 starting with '#' are skipped. A line is a minor planet or a comet by its layout; a field that
-cannot be read is an InputError naming the file, line and column range. The result is the
+cannot be read is an InputError naming the file, line and column range (with skip_bad_rows,
+that line is reported and left out, as a bad row of a target list is). The result is the
 target-file vocabulary of element columns (io/bodyfields.py) in Targets.extra, with
 placeholder RA/Dec, so the same engine computes them (core/bodies/).
 """
@@ -51,6 +52,8 @@ COMET_FIELDS = (("perihelion_distance", 31, 39, "perihelion distance"),
                 ("comet_m1", 92, 95, "absolute magnitude"),
                 ("comet_slope_n", 97, 100, "slope parameter"))
 COMET_OPTIONAL = ("comet_m1", "comet_slope_n")
+# Where each element sits on its line, for the messages ("27-35").
+_COLUMN_RANGES = {key: f"{a}-{b}" for key, a, b, _ in ASTEROID_FIELDS + COMET_FIELDS}
 ELEMENT_COLUMNS = ("semimajor_axis", "perihelion_distance", "eccentricity", "inclination",
                    "ascending_node", "argument_of_perihelion", "mean_anomaly", "orbit_epoch",
                    "perihelion_time", "abs_magnitude", "slope", "comet_m1", "comet_k1")
@@ -144,51 +147,71 @@ def _comet(path, number: int, line: str) -> tuple[str, dict]:
     return name, row
 
 
-def parse_mpc_elements(path, text: str):
-    """Targets (core/targets.py) of every elements line of an MPC-format text."""
+def parse_mpc_elements(path, text: str, skip_bad_rows: bool = False, on_skip=None):
+    """Targets (core/targets.py) of every elements line of an MPC-format text.
+
+    A bad line raises InputError (file, line, column range); with skip_bad_rows it is passed
+    to on_skip(InputError) instead (default: a SkippedRowWarning, as for target lists) and
+    left out."""
     from epochpoint.core.targets import Targets
+
+    from ..targetrows import warn_skipped
 
     lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
     start = next((i + 1 for i, line in enumerate(lines) if line.startswith("-----")), 0)
-    names, rows = [], []
+    names, rows, bad = [], [], 0
     for number, line in enumerate(lines[start:], start=start + 1):
         if not line.strip() or line.lstrip().startswith("#"):
             continue
-        if _ASTEROID_LINE.match(line):
-            name, row = _asteroid(path, number, line)
-        elif _COMET_LINE.match(line):
-            name, row = _comet(path, number, line)
-        else:
-            raise InputError(path, "is neither a minor-planet nor a comet elements line in "
-                                   "the MPC layout", line=number)
+        try:
+            name, row = _element_line(path, number, line)
+            _check_orbit(path, number, name, row)
+        except InputError as err:
+            if not skip_bad_rows:
+                raise
+            (on_skip or warn_skipped)(err)
+            bad += 1
+            continue
         names.append(name)
-        rows.append((number, row))
+        rows.append(row)
     if not rows:
-        raise InputError(path, "holds no orbital elements")
-    extra = {c: np.array([row.get(c, np.nan) for _, row in rows], dtype=float)
-             for c in ELEMENT_COLUMNS if any(c in row for _, row in rows)}
-    _check_orbits(path, extra, names, [number for number, _ in rows])
+        raise InputError(path, f"no usable orbital elements: all {bad} lines have errors"
+                         if bad else "holds no orbital elements")
+    extra = {c: np.array([row.get(c, np.nan) for row in rows], dtype=float)
+             for c in ELEMENT_COLUMNS if any(c in row for row in rows)}
     n = len(rows)
     return Targets.from_columns(ra=np.zeros(n), dec=np.zeros(n), name=names, extra=extra)
 
 
-def _check_orbits(path, extra: dict, names: list, numbers: list) -> None:
-    """Each orbit through the engine's rules (core/bodies/rows.py), so an element no orbit
-    allows (e >= 1 with a mean anomaly, a negative distance) is refused with its line."""
+def _element_line(path, number: int, line: str) -> tuple[str, dict]:
+    """(name, element cells) of one line, a minor planet or a comet by its layout."""
+    if _ASTEROID_LINE.match(line):
+        return _asteroid(path, number, line)
+    if _COMET_LINE.match(line):
+        return _comet(path, number, line)
+    raise InputError(path, "is neither a minor-planet nor a comet elements line in the MPC "
+                           "layout", line=number)
+
+
+def _check_orbit(path, number: int, name: str, row: dict) -> None:
+    """The line's orbit through the engine's rules (core/bodies/rows.py), so an element no
+    orbit allows (e >= 1 with a mean anomaly, a negative distance) is refused with its line
+    and columns."""
     from epochpoint.core.bodies.rows import BodyRowError, source_of_row
 
-    ranges = {name: f"{a}-{b}" for name, a, b, _ in ASTEROID_FIELDS + COMET_FIELDS}
-    for i, (name, number) in enumerate(zip(names, numbers)):
-        try:
-            source_of_row(extra, i, name)
-        except BodyRowError as err:
-            raise InputError(path, str(err).split(": ", 1)[-1], line=number,
-                             column=ranges.get(err.column, err.column), target=name) from None
+    try:
+        source_of_row({c: np.array([v]) for c, v in row.items()}, 0, name)
+    except BodyRowError as err:
+        raise InputError(path, str(err).split(": ", 1)[-1], line=number,
+                         column=_COLUMN_RANGES.get(err.column, err.column),
+                         target=name) from None
 
 
-def read_mpc_elements(path):
-    """The bodies of an MPC elements file as Targets (InputError on bad content)."""
+def read_mpc_elements(path, skip_bad_rows: bool = False, on_skip=None):
+    """The bodies of an MPC elements file as Targets (InputError on bad content; with
+    skip_bad_rows, bad lines reported to on_skip and left out)."""
     from ..filebytes import decode_utf8, read_file_bytes
 
     data = read_file_bytes(path)
-    return parse_mpc_elements(path, decode_utf8(path, data))
+    return parse_mpc_elements(path, decode_utf8(path, data), skip_bad_rows=skip_bad_rows,
+                              on_skip=on_skip)
