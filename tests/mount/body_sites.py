@@ -40,10 +40,11 @@ def away_from_sun(now: Time, min_elongation_deg: float = 45.0) -> str:
 
 
 def site_under(body: str, now: Time, hour_angle_deg: float = -10.0, settle: float = 10.0,
-               solar_filter: bool = False) -> Site:
-    """An invented site where `body` is just east of the meridian near the zenith now."""
+               solar_filter: bool = False, latitude_offset_deg: float = 0.0) -> Site:
+    """An invented site where `body` is just east of the meridian near the zenith now (or
+    `latitude_offset_deg` north of the body's declination)."""
     place = get_body(body, now)
-    latitude = float(np.clip(place.dec.deg, -60.0, 60.0))
+    latitude = float(np.clip(place.dec.deg + latitude_offset_deg, -60.0, 60.0))
     gast = now.sidereal_time("apparent", longitude=0.0 * u.deg).deg
     longitude = (place.ra.deg + hour_angle_deg - gast + 180.0) % 360.0 - 180.0
     limits = MountLimits(min_altitude=10.0, slew_rate=3.0, settle=settle)

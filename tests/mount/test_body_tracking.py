@@ -52,13 +52,18 @@ def _follow(scope, body, site):
 
 
 @pytest.mark.indi
-def test_the_simulator_tracks_the_body_at_its_own_rate(indi_server):
+@pytest.mark.parametrize("hemisphere", [30.0, -30.0], ids=["north", "south"])
+def test_the_simulator_tracks_the_body_at_its_own_rate(indi_server, hemisphere):
     """After the slew, the simulator's reported coordinates follow the body's topocentric
     apparent place (astropy + DE421) over 20 s: their offset changes by under 1 arcsec,
-    while the body moves against the stars by its rate times 20 s."""
+    while the body moves against the stars by its rate times 20 s. At a site 30 deg north of
+    the body's declination and at one 30 deg south of it (the Moon's and planets'
+    declinations stay within +-29 deg, so one site is always northern and one southern: the
+    declination axis's rate changes sign with the hemisphere)."""
     now = Time.now()
     body = away_from_sun(now)
-    site = site_under(body, now, settle=2.0)
+    site = site_under(body, now, settle=2.0, latitude_offset_deg=hemisphere)
+    assert (site.latitude > 0.0) == (hemisphere > 0.0), site.latitude
     targets = body_row(body, "Body")
     said = []
     with Telescope.open(indi_server.address) as scope:

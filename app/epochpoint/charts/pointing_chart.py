@@ -9,8 +9,11 @@
 
 Residual components are "mount reading minus sky", in arcsec on the sky (the first axis times
 the cosine of the second), as core.pointing_model.fit returns them. A pattern left in the
-after-residuals against hour angle or declination points at a term the model lacks. Used by
-the app's pointing tab; the same function can draw a PNG from the command line.
+after-residuals against hour angle or declination points at a term the model lacks. Samples
+with a pier side (a German mount's) are framed by it in every view: a square round each
+east-side mark, a diamond round each west-side one (in the residual plots, round the
+after-marks), so a pattern that differs between the sides shows. Used by the app's pointing
+tab; the same function can draw a PNG from the command line.
 """
 from __future__ import annotations
 
@@ -20,7 +23,11 @@ from matplotlib.figure import Figure
 from .chart_style import apply_axes_style, mix, resolve_style
 
 # Axis names of the residual components and the plot's axes, per mount type.
-AXIS_NAMES = {"equatorial": ("hour angle", "declination"), "altaz": ("azimuth", "altitude")}
+AXIS_NAMES = {"equatorial": ("hour angle", "declination"),
+              "german": ("hour angle", "declination"), "altaz": ("azimuth", "altitude")}
+# The frame round a sample's mark on each pier side (our own choice: shape, not colour, so
+# the theme's few colours keep their meaning).
+SIDE_FRAMES = {"east": "s", "west": "D"}
 # The longest before-arrow spans this many degrees of the axes plot.
 ARROW_SPAN_DEG = 15.0
 
@@ -50,6 +57,21 @@ def _residual_arrows(ax, first_deg, second_deg, before, after, kept, names, look
     ax.set_xlabel(f"{names[0]} (°)", fontsize=8)
     ax.set_ylabel(f"{names[1]} (°)", fontsize=8)
     ax.set_title("Residuals on the axes: before (faint), after", fontsize=9)
+
+
+def _side_frames(ax, x, y, sides, look, gid: str, label: bool = False,
+                 size: float = 70.0) -> None:
+    """A hollow frame round each sample's mark by its pier side (SIDE_FRAMES); gid
+    formatted with the side ("east"/"west"); nothing without sides."""
+    if sides is None:
+        return
+    edge = mix(look["background"], look["foreground"], 0.75)
+    for side, marker in SIDE_FRAMES.items():
+        on = sides == side
+        frames = ax.scatter(x[on], y[on], s=size, marker=marker, facecolors="none",
+                            edgecolors=edge, linewidths=0.8,
+                            label=f"{side} pier side" if label else None)
+        frames.set_gid(gid.format(side))
 
 
 def _coverage(ax, alt_deg, az_deg, kept, look) -> None:
@@ -90,12 +112,13 @@ def _against(ax, x_deg, before, after, kept, axis_names, x_name, look) -> None:
 
 def draw_pointing_charts(figure: Figure, mount_type: str, first_deg, second_deg, ha_deg,
                          dec_deg, alt_deg, az_deg, before_arcsec, after_arcsec, kept,
-                         style: dict | None = None) -> dict:
+                         style: dict | None = None, pier_side=None) -> dict:
     """Draw the four views (module docstring) into `figure`, cleared first.
 
     first_deg, second_deg: the samples' sky places on the mount's own axes ((ha, dec) or
     (az, alt)); ha/dec and alt/az: the same places in both systems; before/after: the
-    residual components (arcsec) per sample; kept: bool per sample. Returns the axes by name.
+    residual components (arcsec) per sample; kept: bool per sample; pier_side: "east"/"west"
+    per sample ("" or anything else unframed), or None. Returns the axes by name.
     """
     look = resolve_style(style)
     figure.clear()
@@ -106,6 +129,8 @@ def draw_pointing_charts(figure: Figure, mount_type: str, first_deg, second_deg,
     before = tuple(np.asarray(v, dtype=float) for v in before_arcsec)
     after = tuple(np.asarray(v, dtype=float) for v in after_arcsec)
     kept = np.asarray(kept, dtype=bool)
+    sides = None if pier_side is None else np.asarray(
+        [str(v).strip().lower() for v in np.ravel(pier_side)], dtype=object)
     axes = {"on_axes": figure.add_subplot(2, 2, 1),
             "coverage": figure.add_subplot(2, 2, 2, projection="polar"),
             "against_ha": figure.add_subplot(2, 2, 3),
@@ -118,6 +143,16 @@ def draw_pointing_charts(figure: Figure, mount_type: str, first_deg, second_deg,
     _coverage(axes["coverage"], alt, az, kept, look)
     _against(axes["against_ha"], ha, before, after, kept, names, "hour angle", look)
     _against(axes["against_dec"], dec, before, after, kept, names, "declination", look)
+    # The pier sides: round the marks of every sample, and round the after-residuals.
+    _side_frames(axes["on_axes"], first, second, sides, look, "on_axes_side_{}")
+    _side_frames(axes["coverage"], np.radians(az), 90.0 - alt, sides, look,
+                 "coverage_side_{}")
+    for name, x in (("against_ha", ha), ("against_dec", dec)):
+        for k in (0, 1):
+            _side_frames(axes[name], x[kept], after[k][kept],
+                         None if sides is None else sides[kept], look,
+                         f"{name}_side_{{}}_{k}", label=name == "against_dec" and k == 0,
+                         size=45.0)
     axes["against_ha"].set_title("Against hour angle", fontsize=9)
     axes["against_dec"].set_title("Against declination", fontsize=9)
     legend = axes["against_dec"].legend(fontsize=6, loc="best", facecolor=look["background"],

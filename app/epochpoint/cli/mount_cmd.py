@@ -139,7 +139,7 @@ def _slew(args) -> int:
     # Refuse before touching the server: nothing is sent for a forbidden target.
     checked_pointing(targets, site, name, model=model)
     with _open(args) as scope:
-        _say("\n".join(_status_lines(scope.status(), site)))
+        _say("\n".join(_status_lines(scope.status(), site, scope.reported_pier_side())))
         if args.push_site:
             scope.push_site(site, notify=_say)
         # A failure once the motion was sent comes back with an abort sent and the words
@@ -211,7 +211,7 @@ def _status(args) -> int:
         from ..io import read_site
         site = read_site(args.site)
     with _open(args, connect_device=False) as scope:
-        _say("\n".join(_status_lines(scope.status(), site)))
+        _say("\n".join(_status_lines(scope.status(), site, scope.reported_pier_side())))
     return 0
 
 
@@ -222,10 +222,12 @@ def _abort(args) -> int:
     return 0
 
 
-def _status_lines(status, site) -> list[str]:
+def _status_lines(status, site, device_pier_side: str = "") -> list[str]:
+    """The status lines; device_pier_side: the device's TELESCOPE_PIER_SIDE (PIER_EAST or
+    PIER_WEST, "" for none), shown with our name for the side beside INDI's."""
     from ..core.limits import MOUNT_TYPE_NAMES
     from ..io import format_dec_dms, format_ra_hms
-    from ..mount.telescope import FRAME_TEXT
+    from ..mount.telescope import FRAME_TEXT, SIDE_OF_INDI, side_words
 
     lines = [f"Device       {status.device} at {status.address} "
              f"({'connected' if status.connected else 'not connected'})"]
@@ -237,6 +239,9 @@ def _status_lines(status, site) -> list[str]:
     shown = [f"{k} {'yes' if v else 'no'}" for k, v in flags.items() if v is not None]
     if shown:
         lines.append("Mount        " + ", ".join(shown))
+    if device_pier_side in SIDE_OF_INDI:
+        lines.append(f"Pier side    {side_words(SIDE_OF_INDI[device_pier_side])}, as the "
+                     f"device reports it (TELESCOPE_PIER_SIDE)")
     if status.latitude is not None:
         lines.append(f"Device site  lat {status.latitude:+.5f} deg, "
                      f"lon {status.longitude:+.5f} deg, {status.height or 0.0:.0f} m")

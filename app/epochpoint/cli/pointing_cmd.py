@@ -14,9 +14,17 @@ from __future__ import annotations
 import json
 import sys
 
+import numpy as np
+
+from ..core.limits import MOUNT_TYPE_NAMES
+from ..core.pointing_model.terms import HOUR_ANGLE_MOUNTS, MOUNT_TYPES
 from . import checks, common
 
 DEFAULT_MAX_MAGNITUDE = 4.0
+# The sky-place and mount-reading columns a model of each kind of axes reads, first axis
+# first: hour angle and declination, or azimuth and altitude.
+HOUR_ANGLE_COLUMNS = (("ha_target", "dec_target"), ("ha_mount", "dec_mount"))
+ALTAZ_COLUMNS = (("az_target", "alt_target"), ("az_mount", "alt_mount"))
 
 
 def add_parser(sub) -> None:
@@ -44,8 +52,10 @@ def add_parser(sub) -> None:
                                                         "dec_target, ha_mount, dec_mount)")
     fit.add_argument("--site", required=True, metavar="SITE",
                      help="site file (TOML) or LAT,LON,HEIGHT: the latitude is used")
-    fit.add_argument("--mount-type", choices=("equatorial", "altaz"), default="equatorial",
-                     help="equatorial (ha/dec columns, default) or altaz (alt/az columns)")
+    fit.add_argument("--mount-type", choices=MOUNT_TYPES, default=None,
+                     help="equatorial (fork: ha/dec columns), german (German equatorial: "
+                          "ha/dec and pier_side columns) or altaz (alt/az columns); default "
+                          "the site file's [mount] type, else equatorial")
     fit.add_argument("--terms", metavar="NAME,NAME",
                      help="terms to fit (default: the standard set of the mount type)")
     fit.add_argument("--output", required=True, metavar="MODEL.json",
@@ -55,7 +65,9 @@ def add_parser(sub) -> None:
     apply.add_argument("model", metavar="MODEL.json")
     apply.add_argument("targets", metavar="TARGETS",
                        help="CSV with ha_target, dec_target (alt_target, az_target for an "
-                            "alt-az model), or any target list with --site --at")
+                            "alt-az model; for a German model optionally pier_side, east or "
+                            "west, else the side a slew takes), or any target list with "
+                            "--site --at")
     apply.add_argument("--skip-bad-rows", action="store_true", help="(target lists) report "
                        "each unreadable row on stderr and go on without it")
     common.add_site_arguments(apply, required=False)
@@ -131,36 +143,57 @@ def _stars(args) -> int:
     return 0
 
 
+def axis_columns(mount_type: str):
+    """((sky first, sky second), (mount first, mount second)) column names of a mount type."""
+    return HOUR_ANGLE_COLUMNS if mount_type in HOUR_ANGLE_MOUNTS else ALTAZ_COLUMNS
+
+
 def _fit(args) -> int:
     from ..core.pointing_model import fit_pointing_model
     from ..io import atomic_write_text, read_site
-    from ..io.pointing_samples import read_samples
+    from ..io.pointing_samples import PIER_SIDE, read_samples
 
     site = read_site(args.site)
-    samples = read_samples(args.samples, args.mount_type)
-    if args.mount_type == "equatorial":
-        sky, mount = ("ha_target", "dec_target"), ("ha_mount", "dec_mount")
-    else:  # (az, alt): azimuth is the first axis
-        sky, mount = ("az_target", "alt_target"), ("az_mount", "alt_mount")
+    # The site's mount type unless one is asked for (a LAT,LON,HEIGHT site: equatorial).
+    mount_type = args.mount_type or site.interlocks.mount.mount_type
+    samples = read_samples(args.samples, mount_type)
+    sky, mount = axis_columns(mount_type)
     terms = None if not args.terms else [t.strip() for t in args.terms.split(",") if t.strip()]
+    # The samples' sides: a German fit needs them; an equatorial one notes two sides.
+    sides = samples[PIER_SIDE] if any(samples[PIER_SIDE]) else None
     fit = fit_pointing_model(samples[sky[0]], samples[sky[1]], samples[mount[0]],
-                             samples[mount[1]], mount_type=args.mount_type,
-                             latitude_deg=site.latitude, terms=terms, names=samples["name"])
+                             samples[mount[1]], mount_type=mount_type,
+                             latitude_deg=site.latitude, terms=terms, names=samples["name"],
+                             pier_side=sides if mount_type in HOUR_ANGLE_MOUNTS else None)
     model = fit.model
     atomic_write_text(args.output, json.dumps(model.to_dict(), indent=2) + "\n")
-    print(_term_table(model))
+    print(_term_table(model, fit.pier_side,
+                      "" if args.mount_type else " (the site's mount type)"))
     return 0
 
 
-def _term_table(model) -> str:
-    """The fitted terms, their errors and significance, and the fit's figures."""
-    lines = [f"{'term':26} {'value':>10} {'error':>8} {'signif.':>8}"]
+def _term_table(model, sides=None, chosen: str = "") -> str:
+    """The fitted terms, their errors and significance, and the fit's figures; a German
+    model's with which terms change sign on the west side and the samples on each side."""
+    from ..core.pointing_model.terms import TERMS
+
+    lines = [f"{MOUNT_TYPE_NAMES[model.mount_type]} model{chosen}, latitude "
+             f"{model.latitude:+.4f} deg"
+             + ("; values as seen on the east pier side" if model.german else "")]
+    lines.append(f"{'term':26} {'value':>10} {'error':>8} {'signif.':>8}"
+                 + (f"  {'west side':9}" if model.german else ""))
     for name, value in model.values.items():
         error = model.errors[name]
-        lines.append(f"{name:26} {value:10.2f} {error:8.2f} {abs(value) / error:8.1f}"
-                     if error > 0 else f"{name:26} {value:10.2f} {error:8.2f}")
+        row = (f"{name:26} {value:10.2f} {error:8.2f} {abs(value) / error:8.1f}"
+               if error > 0 else f"{name:26} {value:10.2f} {error:8.2f} {'':8}")
+        if model.german:
+            row += "  " + ("reversed" if TERMS["german"][name].flips_with_pier else "same")
+        lines.append(row.rstrip())
     lines.append(f"samples {model.samples}, rejected {len(model.rejected)}"
                  + (f" ({', '.join(map(str, model.rejected))})" if model.rejected else ""))
+    if model.german and sides is not None:
+        east = int(sum(1 for s in sides if s == "east"))
+        lines.append(f"pier sides of the samples: east {east}, west {len(sides) - east}")
     lines.append(f"rms before {model.rms_before_arcsec:.2f} arcsec, after "
                  f"{model.rms_after_arcsec:.2f} arcsec")
     return "\n".join(lines)
@@ -193,32 +226,56 @@ def _has_sky_columns(path, names) -> bool:
 
 def _apply(args) -> int:
     model = load_model(args.model)
-    equatorial = model.mount_type == "equatorial"
-    sky = ("ha_target", "dec_target") if equatorial else ("az_target", "alt_target")
-    out = ("ha_mount", "dec_mount") if equatorial else ("az_mount", "alt_mount")
+    sky, out = axis_columns(model.mount_type)
     if _has_sky_columns(args.targets, sky):
-        from ..io.pointing_samples import read_table
+        from ..io.pointing_samples import PIER_SIDE, read_table
 
         table, lines = read_table(args.targets, sky)
         names = table.get("name", [f"line {n}" for n in lines])
         first, second = table[sky[0]], table[sky[1]]
+        # A German model's given sides ("" where a row leaves it to the slew).
+        m1, m2, chosen = _axes_for_rows(model, first, second, table.get(PIER_SIDE))
     else:
         if args.site is None or args.at is None:
             raise ValueError(f"{args.targets}: has no {sky[0]}/{sky[1]} columns; for a target "
                              f"list give --site and --at")
+        from ..core.pointing_model.mount_frame import mount_axes
         from ..core.positions import positions
 
         targets = common.load_targets(args)
-        result = positions(targets, common.load_site(args), args.at)
+        site = common.load_site(args)
+        result = positions(targets, site, args.at)
         names = [str(n) for n in targets.names()]
-        first, second = ((result["ha"], result["dec_observed"]) if equatorial
+        first, second = ((result["ha"], result["dec_observed"]) if model.equatorial
                          else (result["az"], result["alt"]))
-    m1, m2 = model.mount_from_sky(first, second)
+        # The mount-frame stage; a German model on the side a slew to each place takes now.
+        axes = mount_axes(model, result["ha"], result["dec_observed"], result["alt"],
+                          result["az"], site.latitude)
+        m1, m2 = (axes.ha, axes.dec) if model.equatorial else (axes.az, axes.alt)
+        chosen = axes.pier_side
     columns = {"name": list(names), sky[0]: [float(v) for v in first],
                sky[1]: [float(v) for v in second],
-               out[0]: [round(float(v), 7) for v in m1], out[1]: [round(float(v), 7) for v in m2]}
+               out[0]: [round(float(v), 7) for v in np.ravel(m1)],
+               out[1]: [round(float(v), 7) for v in np.ravel(m2)]}
+    if model.german:
+        columns["pier_side"] = [str(s) for s in np.ravel(chosen)]
     _emit(columns, args, meta={})
     return 0
+
+
+def _axes_for_rows(model, first, second, sides):
+    """(first, second, sides) of the axes for sky places given as rows: a German model's on
+    each row's pier side, or where a row gives none the side a slew takes (model.py)."""
+    m1, m2, chosen = model.mount_from_sky_with_side(first, second)
+    if not model.german or sides is None:
+        return m1, m2, chosen
+    given = np.asarray(sides, dtype=object) != ""
+    if np.any(given):
+        g1, g2, g_sides = model.mount_from_sky_with_side(first[given], second[given],
+                                                         sides[given])
+        m1, m2, chosen = np.array(m1), np.array(m2), np.array(chosen, dtype=object)
+        m1[given], m2[given], chosen[given] = g1, g2, g_sides
+    return m1, m2, chosen
 
 
 def _emit(columns: dict, args, meta: dict) -> None:

@@ -39,11 +39,17 @@ second, the axes' rates: sidereal is 15.041067 in RA and 0 in Dec) and TELESCOPE
 TRACK_CUSTOM. From the body's apparent rates (rate_ra including cos Dec, rate_dec; arcsec/s):
 TRACK_RATE_RA = 15.041067 - rate_ra / cos Dec (the hour-angle axis turns with the sky less
 the body's own eastward motion in right ascension) and TRACK_RATE_DE = rate_dec, negated
-when the device reports TELESCOPE_PIER_SIDE PIER_WEST: the rate is the declination AXIS's,
-which turns the other way on that side of the pier. So the INDI telescope simulator (indi-bin
-1.9.9) moves, measured: RA 14.041067 gave +1.05 arcsec/s of RA; DE +1 gave +1.00 arcsec/s of
-Dec on PIER_EAST and -1.00 on PIER_WEST; it refuses to reverse a rate while tracking, so
-set_track_rate disengages tracking for such a change.
+when the device reports TELESCOPE_PIER_SIDE PIER_WEST and negated (again) at a southern site
+(latitude < 0): the rate is the declination AXIS's, whose angle runs with the declination on
+one side of the pier and against it on the other, and the other way round when the polar axis
+points at the south pole (the mechanical angles of core.pointing_model.pier_sides: psi = p dec
+or 180 - p dec). So the INDI telescope simulator (indi-bin 1.9.9) moves, measured: RA
+14.041067 gave +1.0 arcsec/s of RA at latitude +30 and -30; DE +1 gave, in arcsec/s of Dec,
++1.0 on PIER_EAST and -1.0 on PIER_WEST at latitude +30, and -0.94 on PIER_EAST and +0.94 on
+PIER_WEST at latitude -30. INDI does not define the sign for other drivers: check a new
+mount's declination rate once (the watch says the rates it sets). The simulator refuses to
+reverse a rate while tracking, and ignores a rate set while tracking is off, so
+set_track_rate takes a reversing axis through 0 first, tracking kept on.
 Without those properties (or when the device refuses them) the mount tracks sidereally and
 the body drifts off at its apparent rate: the watch re-slews it every 2 * tolerance / rate
 seconds (aimed half an interval ahead, so the error stays within +-tolerance), bounded to
@@ -575,29 +581,23 @@ class Telescope:
         with self._motion_lock:
             if token is not None and self.aborted_since(token):
                 return False
-        # Devices may refuse to reverse an axis's rate while tracking (the INDI simulator
-        # does): tracking is then disengaged for the change and engaged again.
+        # Devices refuse to reverse an axis's rate while tracking (INDI's telescope base
+        # class: "Cannot reverse tracking while tracking is engaged"), and take a rate set
+        # while tracking is off only once tracking mode is switched again; so a reversing
+        # axis goes through 0 first, tracking kept on (measured on the INDI simulator).
+        rates = {"TRACK_RATE_RA": ra_axis_arcsec_s, "TRACK_RATE_DE": de_axis_arcsec_s}
         before = self._vector(TRACK_RATE).values
-        reverses = any(np.sign(float(before.get(k, 0.0) or 0.0)) * np.sign(v) < 0
-                       for k, v in (("TRACK_RATE_RA", ra_axis_arcsec_s),
-                                    ("TRACK_RATE_DE", de_axis_arcsec_s)))
-        state = self._vector("TELESCOPE_TRACK_STATE")
-        pause = reverses and state is not None and bool(state.values.get("TRACK_ON"))
-        if pause:
-            self._switch_to("TELESCOPE_TRACK_STATE", "TRACK_OFF", timeout_s)
-        try:
-            self._set_and_wait(TRACK_RATE, {"TRACK_RATE_RA": ra_axis_arcsec_s,
-                                            "TRACK_RATE_DE": de_axis_arcsec_s}, timeout_s)
-        except IndiTimeout:
-            raise MountFailed(f"device {self.device} did not answer {TRACK_RATE} within "
-                              f"{timeout_s:g} s: {self.last_message()}") from None
+        through_zero = {k: 0.0 if np.sign(float(before.get(k, 0.0) or 0.0)) * np.sign(v) < 0
+                        else v for k, v in rates.items()}
+        steps = ([through_zero] if through_zero != rates else []) + [rates]
+        for values in steps:
+            try:
+                self._set_and_wait(TRACK_RATE, values, timeout_s)
+            except IndiTimeout:
+                raise MountFailed(f"device {self.device} did not answer {TRACK_RATE} within "
+                                  f"{timeout_s:g} s: {self.last_message()}") from None
         if not self._vector(TRACK_MODE).values.get("TRACK_CUSTOM"):
             self._switch_to(TRACK_MODE, "TRACK_CUSTOM", timeout_s)
-        if pause:
-            with self._motion_lock:
-                if token is not None and self.aborted_since(token):
-                    return False
-                self._switch_to("TELESCOPE_TRACK_STATE", "TRACK_ON", timeout_s)
         return True
 
     def stop_tracking(self) -> None:
@@ -942,7 +942,8 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
     if pointing.is_body and not sync and not wait:
         # Not following the slew: the rate is set now, for the device to track at after it
         # (some devices, the INDI simulator among them, take it only once tracking).
-        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify)
+        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify,
+                                       site.latitude < 0.0)
         report.update(follow=follow, reslew_s=reslew_s)
     if pointing.command_eod_deg is not None:
         notify(f"Sky place of {name}: "
@@ -984,7 +985,8 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
                           aborted=stopped())
     if pointing.is_body and not sync and state == "Ok" and not stopped():
         # The slew ended with the mount tracking: now its rate is the body's.
-        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify)
+        follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify,
+                                       site.latitude < 0.0)
         report.update(follow=follow, reslew_s=reslew_s)
     v = scope.client.vector(scope.device, command.coordinate_property)
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])
@@ -1006,23 +1008,28 @@ def reslew_cadence(rate_arcsec_s: float, tolerance_arcsec: float) -> float:
     return float(np.clip(2.0 * tolerance_arcsec / rate_arcsec_s, RESLEW_MIN_S, RESLEW_MAX_S))
 
 
-def track_rates(pointing: Pointing, pier_west: bool = False) -> tuple[float, float]:
+def track_rates(pointing: Pointing, pier_west: bool = False,
+                southern: bool = False) -> tuple[float, float]:
     """INDI TELESCOPE_TRACK_RATE values (TRACK_RATE_RA, TRACK_RATE_DE; axis rates, arcsec
     per SI second) that follow a body: the sidereal rate less its right-ascension rate,
-    and its declination rate, negated with the mount on the west of the pier (the
-    declination axis turns the other way there; see the module docstring)."""
+    and its declination rate, negated with the device reporting PIER_WEST and negated with
+    the site south of the equator (the declination axis turns the other way in each case;
+    see the module docstring)."""
     cos_dec = np.cos(pointing.dec_apparent_deg * DEG_TO_RAD)
-    de_axis = -pointing.rate_dec_arcsec_s if pier_west else pointing.rate_dec_arcsec_s
+    de_axis = -pointing.rate_dec_arcsec_s if pier_west != southern \
+        else pointing.rate_dec_arcsec_s
     return INDI_SIDEREAL_ARCSEC_S - pointing.rate_ra_arcsec_s / max(cos_dec, 1e-6), de_axis
 
 
 def follow_body(scope: Telescope, pointing: Pointing, tolerance_arcsec: float,
-                token: int | None, notify: Notify = _silent) -> tuple[str, float | None]:
+                token: int | None, notify: Notify = _silent,
+                southern: bool = False) -> tuple[str, float | None]:
     """Make the mount follow a body after its slew: its own tracking rate when the device
-    offers one ("track rate"), else re-slews at a cadence ("re-slew", the cadence in s)."""
+    offers one ("track rate"), else re-slews at a cadence ("re-slew", the cadence in s).
+    `southern`: the site is south of the equator (the declination rate's sign)."""
     drift = float(np.hypot(pointing.rate_ra_arcsec_s, pointing.rate_dec_arcsec_s))
     if scope.offers_track_rate():
-        ra_axis, de_axis = track_rates(pointing, scope.pier_west())
+        ra_axis, de_axis = track_rates(pointing, scope.pier_west(), southern)
         try:
             if not scope.set_track_rate(ra_axis, de_axis, token):
                 return "", None

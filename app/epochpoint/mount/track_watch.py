@@ -80,7 +80,8 @@ class _BodyFollower:
         self.last = time.monotonic()
         if self.by_rate:
             now = pointing_for(self.targets, self.site, self.name)
-            return self.scope.set_track_rate(*track_rates(now, self.scope.pier_west()),
+            return self.scope.set_track_rate(*track_rates(now, self.scope.pier_west(),
+                                                         self.site.latitude < 0.0),
                                              token=self.token)
         ahead = self.site.interlocks.mount.settle + self.every_s / 2.0
         aim = pointing_for(self.targets, self.site, self.name,

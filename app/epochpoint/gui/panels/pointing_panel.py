@@ -1,10 +1,12 @@
 """The Pointing model tab: fit a mount's pointing model to a file of centred stars.
 
 Choose a samples file (io.pointing_samples: one centred star a row, as the mount tab's Record
-button or `epochpoint pointing record` writes them) and the mount type; the fit runs in a
-worker (pointing_fit.fit_samples_file) at the site's latitude. Shown: a table of the terms
-(value, standard error, significance; terms the samples cannot determine, with the reason),
-the fit's figures and notes, and the charts of charts.pointing_chart. "Save model…" writes the
+button or `epochpoint pointing record` writes them) and the mount type (set to the site's when
+that changes; a German equatorial mount's samples carry their pier side); the fit runs
+in a worker (pointing_fit.fit_samples_file) at the site's latitude. Shown: a table of the
+terms (value, standard error, significance; terms the samples cannot determine, with the
+reason), the fit's figures and notes (the samples on each pier side), and the charts of
+charts.pointing_chart, which frame each sample by its pier side. "Save model…" writes the
 model file (JSON, atomically) that the mount tab and `epochpoint mount slew --model` use.
 A bad file is reported in one line; the last good fit stays shown.
 """
@@ -19,6 +21,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QComboBox, QFileDialog, QHBoxL
                                QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
 
 from ...charts.pointing_chart import draw_pointing_charts
+from ...core.limits import MOUNT_TYPE_NAMES
 from ...core.pointing_model.terms import MOUNT_TYPES, TERMS
 from ..workers import run_in_worker
 from .chart_canvas import ChartCanvas
@@ -45,6 +48,20 @@ def term_rows(model) -> list[tuple]:
     return rows
 
 
+def _sides_text(model, sides) -> str:
+    """The samples on each pier side (framed in the charts), and for a German model which
+    side its values are seen from; "" without sides."""
+    if sides is None:
+        return ""
+    east = sum(1 for s in sides if s == "east")
+    west = sum(1 for s in sides if s == "west")
+    text = f"\nPier sides: {east} samples east (square frames), {west} west (diamond frames)"
+    if model.german:
+        text += ("; values as seen on the east side, the declination axis's terms reversed "
+                 "on the west")
+    return text + "."
+
+
 def _number(value: float, digits: int) -> str:
     return f"{value:.{digits}f}" if math.isfinite(value) else "—"
 
@@ -57,6 +74,7 @@ class PointingPanel(QWidget):
     def __init__(self, parent=None):
         super().__init__(parent)
         self.latitude: float | None = None
+        self.site_mount_type: str | None = None  # the last site's, to follow its changes
         self.fitted = None  # the last good pointing_fit.FittedSamples
         self.task = None
 
@@ -66,9 +84,11 @@ class PointingPanel(QWidget):
         browse = QPushButton("&Browse…")
         browse.clicked.connect(self._browse)
         self.mount_combo = QComboBox()
-        self.mount_combo.addItems(MOUNT_TYPES)
-        self.mount_combo.setToolTip("equatorial: hour angle and declination axes; altaz: "
-                                    "azimuth and altitude axes")
+        for mount_type in MOUNT_TYPES:
+            self.mount_combo.addItem(MOUNT_TYPE_NAMES[mount_type], mount_type)
+        self.mount_combo.setToolTip("fork equatorial: hour angle and declination axes; German "
+                                    "equatorial: the same, on two pier sides (the samples' "
+                                    "pier_side column); alt-az: azimuth and altitude axes")
         self.fit_button = QPushButton("&Fit")
         self.fit_button.clicked.connect(self.fit)
         self.save_button = QPushButton("Save &model…")
@@ -117,12 +137,26 @@ class PointingPanel(QWidget):
 
     # -- inputs ----------------------------------------------------------------------------
     def set_site(self, site) -> None:
-        """The model's latitude is the site's (tube sag depends on it)."""
+        """The model's latitude is the site's (tube sag depends on it); a site whose mount
+        type changed chooses that type."""
         self.latitude = float(site.latitude)
+        mount_type = site.interlocks.mount.mount_type
+        if mount_type != self.site_mount_type:
+            self.site_mount_type = mount_type
+            self.set_mount_type(mount_type)
 
-    def set_samples_path(self, path: str, mount_type: str = "equatorial") -> None:
+    def set_mount_type(self, mount_type: str) -> None:
+        """Choose the mount type to fit ("equatorial", "german" or "altaz")."""
+        self.mount_combo.setCurrentIndex(self.mount_combo.findData(mount_type))
+
+    def mount_type(self) -> str:
+        return self.mount_combo.currentData()
+
+    def set_samples_path(self, path: str, mount_type: str | None = None) -> None:
+        """The samples file, and the mount type when given (else the one chosen)."""
         self.path_edit.setText(str(path))
-        self.mount_combo.setCurrentText(mount_type)
+        if mount_type is not None:
+            self.set_mount_type(mount_type)
 
     def _browse(self) -> None:
         path, _ = QFileDialog.getOpenFileName(self, "Pointing samples", self.path_edit.text(),
@@ -145,7 +179,7 @@ class PointingPanel(QWidget):
             self.task.cancel()
         self._show_problem("")
         self.fit_button.setEnabled(False)
-        self.task = run_in_worker(self, fit_samples_file, path, self.mount_combo.currentText(),
+        self.task = run_in_worker(self, fit_samples_file, path, self.mount_type(),
                                   self.latitude, on_done=self._on_fitted,
                                   on_error=self._on_failed,
                                   progress_label="Fitting the pointing model")
@@ -155,7 +189,7 @@ class PointingPanel(QWidget):
         self.task = None
         self.fitted = fitted
         self.save_button.setEnabled(True)
-        self._show_model(fitted.fit.model)
+        self._show_model(fitted.fit.model, fitted.pier_side)
         self._draw()
         self.status_message.emit(f"Pointing model fitted: rms "
                                  f"{fitted.fit.model.rms_after_arcsec:.1f}″ after the model")
@@ -170,7 +204,7 @@ class PointingPanel(QWidget):
                                    if text else "")
 
     # -- showing ---------------------------------------------------------------------------
-    def _show_model(self, model) -> None:
+    def _show_model(self, model, sides=None) -> None:
         rows = term_rows(model)
         meanings = TERMS[model.mount_type]
         self.table.setRowCount(len(rows))
@@ -188,10 +222,10 @@ class PointingPanel(QWidget):
                     if model.rejected else "; none rejected")
         notes = [n for n in model.notes if n.split(" ", 1)[0] not in meanings]
         self.summary.setText(
-            f"{model.mount_type} mount at latitude {model.latitude:+.4f}°: {model.samples} "
-            f"samples used{rejected}. RMS on the sky {model.rms_before_arcsec:.1f}″ before, "
-            f"{model.rms_after_arcsec:.1f}″ after the model."
-            + "".join(f"\nNote: {n}." for n in notes))
+            f"{MOUNT_TYPE_NAMES[model.mount_type]} mount at latitude {model.latitude:+.4f}°: "
+            f"{model.samples} samples used{rejected}. RMS on the sky "
+            f"{model.rms_before_arcsec:.1f}″ before, {model.rms_after_arcsec:.1f}″ after the "
+            f"model." + _sides_text(model, sides) + "".join(f"\nNote: {n}." for n in notes))
 
     def _draw(self) -> None:
         f = self.fitted
@@ -200,7 +234,8 @@ class PointingPanel(QWidget):
             return
         self.axes = draw_pointing_charts(self.canvas.figure, f.mount_type, f.first, f.second,
                                          f.ha, f.dec, f.alt, f.az, f.fit.before_arcsec,
-                                         f.fit.after_arcsec, f.fit.kept, style=self.canvas.style)
+                                         f.fit.after_arcsec, f.fit.kept, style=self.canvas.style,
+                                         pier_side=f.pier_side)
         self.canvas.draw_idle()
 
     def _apply_theme(self) -> None:
