@@ -255,3 +255,37 @@ def test_threads_and_forked_processes_after_a_compiled_call():
                 "print('ok')")
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "ok"
+
+
+def _has_avx2() -> bool:
+    try:
+        with open("/proc/cpuinfo") as info:
+            return " avx2" in info.read()
+    except OSError:
+        return False
+
+
+@pytest.mark.skipif(not _has_avx2(), reason="the vector registers checked for are AVX2's")
+def test_each_stage_of_the_chain_compiles_to_vector_code(tmp_path):
+    """The stages' loops must stay free of branches and library calls so that the compiler
+    vectorises them (kernels_chain.py): compiled afresh, each stage's machine code works in
+    256-bit registers (ymm) throughout, not in a few scalar ones. A branch or a C library
+    call in a stage makes LLVM keep it scalar and this fails."""
+    done = _run("import re, warnings; warnings.simplefilter('ignore')\n"
+                "import numpy as np\n"
+                "from epochpoint.core import kernels_chain as kc\n"
+                "work = np.full(kc.N_WORK_ROWS * kc.BLOCK, 0.5)\n"
+                "m = np.eye(3); instant = np.full(kc.N_INSTANT, 0.5)\n"
+                "kc._space_motion(work, 2027.0)\n"
+                "kc._apparent(work, instant, np.full((3, 3), 0.1), m)\n"
+                "kc._observed(work, instant, m, m)\n"
+                "for f in (kc._space_motion, kc._apparent, kc._observed):\n"
+                "    asm = f.inspect_asm(f.signatures[0])\n"
+                "    print(f.__name__, len(re.findall(r'ymm', asm)), "
+                "len(re.findall(r'xmm', asm)))",
+                NUMBA_CACHE_DIR=str(tmp_path))
+    assert done.returncode == 0, done.stderr
+    for line in done.stdout.strip().splitlines():
+        name, ymm, xmm = line.split()
+        # Measured: 700-1700 ymm against 40-180 xmm mentions; scalar code has no ymm at all.
+        assert int(ymm) > 3 * int(xmm), line
