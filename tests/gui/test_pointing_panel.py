@@ -24,7 +24,8 @@ import pytest
 
 from epochpoint.core.site import Site
 from epochpoint.gui import workers
-from epochpoint.gui.panels.pointing_panel import PointingPanel, TABLE_HEADERS
+from epochpoint.gui.panels.pointing_panel import TABLE_HEADERS
+from pointing_panel_helpers import fit_file, open_panel
 
 SEED = 20270311
 LATITUDE = 37.2  # an invented site
@@ -89,19 +90,8 @@ def write_samples(path, outlier_arcsec=600.0):
 
 @pytest.fixture
 def panel(qtbot):
-    widget = PointingPanel()
-    qtbot.addWidget(widget)
-    widget.resize(1000, 900)
-    widget.set_site(SITE)
-    widget.show()
-    yield widget
+    yield open_panel(qtbot, SITE)
     workers.wait_for_workers()
-
-
-def fit_file(qtbot, panel, path):
-    panel.set_samples_path(str(path))
-    panel.fit()
-    qtbot.waitUntil(lambda: panel.task is None, timeout=60_000)
 
 
 def shown_terms(panel) -> dict:

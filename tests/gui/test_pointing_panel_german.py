@@ -22,7 +22,8 @@ from epochpoint.core.limits import Interlocks, MountLimits
 from epochpoint.core.pointing_model.terms import DEFAULT_TERMS
 from epochpoint.core.site import Site
 from epochpoint.gui import workers
-from epochpoint.gui.panels.pointing_panel import PointingPanel, TABLE_HEADERS
+from epochpoint.gui.panels.pointing_panel import TABLE_HEADERS
+from pointing_panel_helpers import fit_file, open_panel
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "pointing"))
 from test_german_mount import BUILT, EXPECTED, NOISE, two_sided_samples  # noqa: E402
@@ -54,19 +55,8 @@ def samples_file(tmp_path, monkeypatch):
 
 @pytest.fixture
 def panel(qtbot):
-    widget = PointingPanel()
-    qtbot.addWidget(widget)
-    widget.resize(1000, 900)
-    widget.set_site(GERMAN_SITE)
-    widget.show()
-    yield widget
+    yield open_panel(qtbot, GERMAN_SITE)
     workers.wait_for_workers()
-
-
-def fit_file(qtbot, panel, path):
-    panel.set_samples_path(str(path))
-    panel.fit()
-    qtbot.waitUntil(lambda: panel.task is None, timeout=60_000)
 
 
 def shown_terms(panel) -> dict:

@@ -3,14 +3,13 @@ coordinates to be sent; before a slew, the safety caution, once) and the report 
 sync moves nothing, and its confirmation never says the mount is about to move."""
 from __future__ import annotations
 
-from PySide6.QtCore import Qt
-from PySide6.QtWidgets import QDialog, QDialogButtonBox, QLabel, QVBoxLayout
 
 from ...core.limits import SOLAR_CAUTION
 from ...io.angles import format_dec_dms, format_ra_hms
 from ...mount import CAUTION
 from ...mount.telescope import (DEFAULT_TRACK_S, FRAME_TEXT, J2000_COORD, command_place,
                                 pier_side_comparison, side_words, sky_place)
+from ..cautious_question import CautiousQuestion
 from ..number_text import fixed
 
 
@@ -101,28 +100,10 @@ def report_text(report) -> str:
     return "; ".join(parts) + "." + (f" {pier}" if pier else "")
 
 
-class ConfirmMotionDialog(QDialog):
-    """The last question before anything is sent: accept sends, anything else sends nothing."""
+class ConfirmMotionDialog(CautiousQuestion):
+    """The last question before anything is sent: accept sends, anything else sends nothing
+    (Enter does not move the mount)."""
 
     def __init__(self, text: str, sync: bool, parent=None):
-        super().__init__(parent)
-        self.setWindowTitle("Confirm sync" if sync else "Confirm slew")
-        self.message = QLabel(text)
-        self.message.setObjectName("confirmText")
-        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.message.setWordWrap(True)
-        self.message.setMinimumWidth(520)
-        buttons = QDialogButtonBox()
-        go = buttons.addButton("Sync" if sync else "Slew and track",
-                               QDialogButtonBox.ButtonRole.AcceptRole)
-        cancel = buttons.addButton(QDialogButtonBox.StandardButton.Cancel)
-        go.setAutoDefault(False)
-        cancel.setDefault(True)  # Enter does not move the mount
-        buttons.accepted.connect(self.accept)
-        buttons.rejected.connect(self.reject)
-        layout = QVBoxLayout(self)
-        layout.addWidget(self.message)
-        layout.addWidget(buttons)
-
-    def text(self) -> str:
-        return self.message.text()
+        super().__init__("Confirm sync" if sync else "Confirm slew", text,
+                         "Sync" if sync else "Slew and track", "confirmText", 520, parent)

@@ -9,11 +9,11 @@ caution stays written under the box.
 """
 from __future__ import annotations
 
-from PySide6.QtCore import Qt, Signal
-from PySide6.QtWidgets import (QCheckBox, QDialog, QDialogButtonBox, QLabel, QVBoxLayout,
-                               QWidget)
+from PySide6.QtCore import Signal
+from PySide6.QtWidgets import QCheckBox, QLabel, QVBoxLayout, QWidget
 
 from ...core.limits import SOLAR_CAUTION
+from ..cautious_question import CautiousQuestion
 
 OPTION_TEXT = ("Solar filter fitted: a full-aperture solar filter covers the telescope and "
                "every finder (the Sun may be a target)")
@@ -25,32 +25,13 @@ ASK_TEXT = ("Switch the solar option on only while a full-aperture solar filter 
             "other target).")
 
 
-class SolarOptionDialog(QDialog):
+class SolarOptionDialog(CautiousQuestion):
     """The question before the solar option goes on: the caution, then an explicit choice
     (Cancel is the default, so Enter or Escape leave the option off)."""
 
     def __init__(self, parent=None):
-        super().__init__(parent)
-        self.setWindowTitle("Switch the solar option on?")
-        self.message = QLabel(f"{ASK_TEXT}\n\n{SOLAR_CAUTION}")
-        self.message.setObjectName("solarAsk")
-        self.message.setWordWrap(True)
-        self.message.setMinimumWidth(480)
-        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        buttons = QDialogButtonBox()
-        yes = buttons.addButton("Filter fitted: switch on",
-                                QDialogButtonBox.ButtonRole.AcceptRole)
-        cancel = buttons.addButton(QDialogButtonBox.StandardButton.Cancel)
-        yes.setAutoDefault(False)
-        cancel.setDefault(True)
-        buttons.accepted.connect(self.accept)
-        buttons.rejected.connect(self.reject)
-        layout = QVBoxLayout(self)
-        layout.addWidget(self.message)
-        layout.addWidget(buttons)
-
-    def text(self) -> str:
-        return self.message.text()
+        super().__init__("Switch the solar option on?", f"{ASK_TEXT}\n\n{SOLAR_CAUTION}",
+                         "Filter fitted: switch on", "solarAsk", 480, parent)
 
 
 class SolarOption(QWidget):
@@ -87,7 +68,7 @@ class SolarOption(QWidget):
     def confirm(self) -> bool:
         """Ask (SolarOptionDialog); True only for an explicit yes."""
         dialog = SolarOptionDialog(self)
-        accepted = dialog.exec() == QDialog.DialogCode.Accepted
+        accepted = dialog.exec() == CautiousQuestion.DialogCode.Accepted
         dialog.deleteLater()
         return accepted
 
