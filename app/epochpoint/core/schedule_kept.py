@@ -20,8 +20,13 @@ from astropy.time import Time
 from .schedule import Schedule, Unscheduled, _alone_reason
 from .schedule_model import priority_weight
 
-# Saved times carry milliseconds; a block may overhang its window by rounding only.
-TIME_SLACK_S = 0.01
+# How far a saved block may overhang its window. Saved times carry milliseconds, and a plan
+# saved before the Earth-orientation tables were updated (astropy-iers-data) sees its windows
+# move with the change in predicted UT1, milliseconds to tens of milliseconds months ahead;
+# a second is far below anything that matters at the telescope.
+TIME_SLACK_S = 1.0
+# A block's length is exposure x repeats up to the milliseconds of its saved times.
+ROUNDING_S = 0.01
 
 
 def _seconds_from_ref(plan, iso_texts: list) -> np.ndarray:
@@ -57,7 +62,7 @@ def keep_schedule(plan, entries: list):
     order = np.argsort(start, kind="stable")
     index, start, end = index[order], start[order], end[order]
     # The same block length, inside one window of its target, no overlap.
-    if not np.allclose(end - start, plan.duration_s[index], atol=TIME_SLACK_S, rtol=0.0):
+    if not np.allclose(end - start, plan.duration_s[index], atol=ROUNDING_S, rtol=0.0):
         return None
     for i, a, b in zip(index, start, end):
         if not any(s - TIME_SLACK_S <= a and b <= e + TIME_SLACK_S
