@@ -46,3 +46,15 @@ def shown_panel(qtbot, panel_class, size, plan):
     widget.set_plan(plan)
     settle(qtbot, widget, widget.canvas)
     return widget
+
+
+def demo_site_editor(qtbot):
+    """The Site & limits tab, shown at a working size, holding the demo site."""
+    from epochpoint.gui.panels import SiteEditor
+
+    widget = SiteEditor()
+    qtbot.addWidget(widget)
+    widget.resize(1150, 760)
+    settle(qtbot, widget)
+    widget.set_site(demo_inputs()[1])
+    return widget

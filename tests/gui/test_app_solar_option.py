@@ -24,7 +24,7 @@ from epochpoint.gui.panels import SiteEditor
 from epochpoint.gui.panels.solar_option import SolarOptionDialog
 from epochpoint.io.planfile import NightSettings, PlanDocument
 from epochpoint.io.sitefile import read_site_file
-from panels_demo import demo_inputs, settle
+from panels_demo import demo_inputs, demo_site_editor
 from shell_support import make_window, settings, wait_for_plan  # noqa: F401
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
@@ -54,11 +54,7 @@ YES, NO = QDialog.DialogCode.Accepted, QDialog.DialogCode.Rejected
 
 @pytest.fixture
 def editor(qtbot):
-    widget = SiteEditor()
-    qtbot.addWidget(widget)
-    widget.resize(1150, 760)
-    settle(qtbot, widget)
-    widget.set_site(demo_inputs()[1])
+    widget = demo_site_editor(qtbot)
     yield widget
     widget.close()
 

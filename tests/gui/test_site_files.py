@@ -16,11 +16,10 @@ import pytest
 
 from epochpoint.core.limits import HorizonMask, Interlocks, MountLimits
 from epochpoint.core.site import Site
-from epochpoint.gui.panels import SiteEditor
 from epochpoint.io.sitefile import read_site_file, site_to_tables
 from epochpoint.io.sitelimits import read_horizon_file
 from epochpoint.io.sitewrite import site_file_text
-from panels_demo import demo_inputs, settle
+from panels_demo import demo_site_editor
 
 SEED = 10
 NAMES = ('Cerro "Quote" \\ Obs', "Tab\there", "Mirador del Río", "", "x" * 90, "ünï\u0001")
@@ -73,11 +72,7 @@ def test_site_file_text_reads_back_with_tomllib(name, tmp_path):
 
 @pytest.fixture
 def editor(qtbot):
-    widget = SiteEditor()
-    qtbot.addWidget(widget)
-    widget.resize(1150, 760)
-    settle(qtbot, widget)
-    widget.set_site(demo_inputs()[1])
+    widget = demo_site_editor(qtbot)
     yield widget
     widget.close()
 
