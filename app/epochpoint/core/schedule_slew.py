@@ -64,7 +64,8 @@ class Mount:
     @property
     def pole_sign(self) -> float:
         """+1 when the polar axis points at the north celestial pole, -1 at the south."""
-        return 1.0 if self.latitude_deg >= 0.0 else -1.0
+        from .pointing_model.pier_sides import pole_sign_for
+        return pole_sign_for(self.latitude_deg)
 
     def park_ra(self) -> float | None:
         """The park's right ascension at the night's start (deg), or None without a park."""

@@ -81,7 +81,7 @@ from ..core.constants import DEG_TO_RAD, RAD_TO_ARCSEC
 from ..core.context import make_context
 from ..core.horizon_geometry import SIDEREAL_DEG_PER_S
 from ..core.limits import SOLAR_CAUTION, pier_flip_check
-from ..core.pointing_model.pier_sides import pier_side_for
+from ..core.pointing_model.pier_sides import pier_side_for, pole_sign_for
 from ..core.site import Site
 from ..core.targets import Targets
 from ..core.timescale import parse_time
@@ -943,7 +943,7 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
         # Not following the slew: the rate is set now, for the device to track at after it
         # (some devices, the INDI simulator among them, take it only once tracking).
         follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify,
-                                       site.latitude < 0.0)
+                                       pole_sign_for(site.latitude) < 0.0)
         report.update(follow=follow, reslew_s=reslew_s)
     if pointing.command_eod_deg is not None:
         notify(f"Sky place of {name}: "
@@ -986,7 +986,7 @@ def _point(scope: Telescope, targets: Targets, site: Site, name: str, pointing: 
     if pointing.is_body and not sync and state == "Ok" and not stopped():
         # The slew ended with the mount tracking: now its rate is the body's.
         follow, reslew_s = follow_body(scope, pointing, tolerance_arcsec, token, notify,
-                                       site.latitude < 0.0)
+                                       pole_sign_for(site.latitude) < 0.0)
         report.update(follow=follow, reslew_s=reslew_s)
     v = scope.client.vector(scope.device, command.coordinate_property)
     report.update(reported_ra_deg=v.values["RA"] * 15.0, reported_dec_deg=v.values["DEC"])

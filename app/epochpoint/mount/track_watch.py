@@ -27,6 +27,7 @@ from typing import Callable
 import numpy as np
 
 from ..core.context import make_context
+from ..core.pointing_model.pier_sides import pole_sign_for
 from ..core.site import Site
 from ..core.targets import Targets
 from astropy.time import TimeDelta
@@ -80,8 +81,8 @@ class _BodyFollower:
         self.last = time.monotonic()
         if self.by_rate:
             now = pointing_for(self.targets, self.site, self.name)
-            return self.scope.set_track_rate(*track_rates(now, self.scope.pier_west(),
-                                                         self.site.latitude < 0.0),
+            southern = pole_sign_for(self.site.latitude) < 0.0
+            return self.scope.set_track_rate(*track_rates(now, self.scope.pier_west(), southern),
                                              token=self.token)
         ahead = self.site.interlocks.mount.settle + self.every_s / 2.0
         aim = pointing_for(self.targets, self.site, self.name,

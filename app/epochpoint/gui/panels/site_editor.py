@@ -17,7 +17,8 @@ from PySide6.QtCore import Signal
 from PySide6.QtWidgets import (QComboBox, QGridLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
                                QScrollArea, QVBoxLayout, QWidget)
 
-from ...core.limits import MOUNT_TYPES, HorizonMask, Interlocks, LimitError, MountLimits
+from ...core.limits import (MOUNT_TYPE_NAMES, MOUNT_TYPES, HorizonMask, Interlocks, LimitError,
+                             MountLimits)
 from ...core.site import Site, SiteError
 from .horizon_editor import HorizonCellError, HorizonEditor
 from .site_files import SiteFiles
@@ -25,9 +26,6 @@ from .solar_option import SolarOption
 from .theme_link import theme_chart_style, theme_colour, watch_theme
 
 SUN_AVOIDANCE_WARN_DEG = 30.0
-# How each of core.limits.MOUNT_TYPES is shown (the trade's names; common practice).
-MOUNT_TYPE_NAMES = {"german": "German equatorial", "equatorial": "fork equatorial",
-                    "altaz": "alt-az"}
 
 # key, label, tooltip; the key is the core's field name (Site, MountLimits or Interlocks).
 PLACE_FIELDS = (
