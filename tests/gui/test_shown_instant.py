@@ -19,6 +19,7 @@ import pytest
 from PySide6.QtCore import QPoint, Qt
 
 from epochpoint.gui.target_model import COLUMN_INDEX
+from epochpoint.io.planfile import read_plan_file
 from shell_support import DEMO_PLAN, WAIT_MS, make_window, settings, wait_for_plan  # noqa: F401
 
 pytestmark = [pytest.mark.filterwarnings("ignore::erfa.ErfaWarning"),
@@ -89,8 +90,9 @@ def test_another_night_shows_its_middle_everywhere(make_window, qtbot):
 
 def test_tonight_shows_the_present(make_window, qtbot):
     window = make_window()
-    site = window.document.site
-    tonight = _tonight(site)
+    # Tonight at the demo plan's site (not the empty window's placeholder site, whose night
+    # turns at another hour).
+    tonight = _tonight(read_plan_file(DEMO_PLAN).site)
     assert window.open_path(DEMO_PLAN, night=tonight)
     wait_for_plan(qtbot, window)
     _wait_for_instant(qtbot, window, lambda t: abs(
